@@ -1,0 +1,60 @@
+import { type ChannelBlock, type FieldBlock, fieldBlock } from '../pipeline/blocks.js';
+import { BlockError, type Stage, type StageRecord } from '../pipeline/stage.js';
+import { complexArray } from '../signal/complex.js';
+
+export interface CombineDiagnostics {
+  /** Samples combined so far, per polarization. */
+  readonly samples: number;
+}
+
+/**
+ * Joins the four real receiver channels into the complex dual-polarization
+ * field at the scope rate: x = xi + j·xq, y = yi + j·yq. Stateless.
+ */
+export function combineChannels(): Stage<'channels', 'field', CombineDiagnostics> {
+  return new CombineChannels();
+}
+
+class CombineChannels implements Stage<'channels', 'field', CombineDiagnostics> {
+  readonly name = 'combine-channels';
+  readonly input = 'channels' as const;
+  readonly output = 'field' as const;
+  private samples = 0;
+
+  process(block: ChannelBlock): FieldBlock<'field'> {
+    if (block.domain !== 'channels')
+      throw new BlockError(`${this.name}: expected a 'channels' block, received '${block.domain}'`);
+    const n = block.xi.length;
+    if (block.xq.length !== n || block.yi.length !== n || block.yq.length !== n) {
+      throw new BlockError(
+        `${this.name}: channel lengths differ (xi ${n}, xq ${block.xq.length}, yi ${block.yi.length}, yq ${block.yq.length})`,
+      );
+    }
+    const x = complexArray(n);
+    const y = complexArray(n);
+    for (let k = 0; k < n; k++) {
+      x[2 * k] = block.xi[k];
+      x[2 * k + 1] = block.xq[k];
+      y[2 * k] = block.yi[k];
+      y[2 * k + 1] = block.yq[k];
+    }
+    this.samples += n;
+    return fieldBlock('field', x, y, block.sampleRate, block.samplesPerSymbol);
+  }
+
+  flush(): null {
+    return null;
+  }
+
+  reset(): void {
+    this.samples = 0;
+  }
+
+  diagnostics(): CombineDiagnostics {
+    return { samples: this.samples };
+  }
+
+  describe(): StageRecord {
+    return { stage: this.name, options: {} };
+  }
+}

@@ -1,0 +1,85 @@
+import type { BlockOf, Domain } from './blocks.js';
+
+/** A JSON-serializable value, for reproducibility records. */
+export type JsonValue = null | boolean | number | string | readonly JsonValue[] | { readonly [key: string]: JsonValue };
+
+/** What a stage is and how it was configured: enough to build it again. */
+export interface StageRecord {
+  readonly stage: string;
+  readonly options: { readonly [key: string]: JsonValue };
+  /** For a pipeline, the records of its stages in order. */
+  readonly stages?: readonly StageRecord[];
+}
+
+/**
+ * A stateful block processor from domain `In` to domain `Out`.
+ *
+ * Contract (checked for every stage by the block-size property test):
+ * - `process` takes a block of any length (zero included) and returns what
+ *   it can emit so far, keeping whatever state it needs (filter memory, taps,
+ *   phase, loop filters) for the next block;
+ * - `flush` ends the stream and returns what was held back, or `null`;
+ * - the concatenated output is identical whatever the block sizes;
+ * - `reset` returns the stage to its freshly created state;
+ * - `diagnostics` reports what the stage learned; a stage never prints.
+ *
+ * Options are validated when a stage is created; `process` does not
+ * re-validate them.
+ */
+export interface Stage<In extends Domain, Out extends Domain, Diagnostics = unknown> {
+  /** Stage name, as in reproducibility records. */
+  readonly name: string;
+  /** Domain accepted. */
+  readonly input: In;
+  /** Domain produced. */
+  readonly output: Out;
+  process(block: BlockOf<In>): BlockOf<Out>;
+  flush(): BlockOf<Out> | null;
+  reset(): void;
+  diagnostics(): Diagnostics;
+  describe(): StageRecord;
+}
+
+/** Any stage, for generic code. */
+// biome-ignore lint/suspicious/noExplicitAny: the widest stage type is needed for heterogeneous lists.
+export type AnyStage = Stage<any, any, any>;
+
+/** Domain accepted by a stage type. */
+export type InputOf<S> = S extends Stage<infer I, Domain, unknown> ? I : never;
+/** Domain produced by a stage type. */
+export type OutputOf<S> = S extends Stage<Domain, infer O, unknown> ? O : never;
+/** Diagnostics type of a stage type. */
+export type DiagnosticsOf<S> = S extends Stage<Domain, Domain, infer D> ? D : never;
+
+/**
+ * Thrown when a stage's options are out of range or inconsistent: names the
+ * stage, the option, what was expected and what was received.
+ */
+export class OptionError extends RangeError {
+  override readonly name = 'OptionError';
+  constructor(
+    readonly stage: string,
+    readonly option: string,
+    readonly expected: string,
+    readonly received: unknown,
+  ) {
+    super(`${stage}: option '${option}' expected ${expected}, received ${formatValue(received)}`);
+  }
+}
+
+function formatValue(v: unknown): string {
+  if (typeof v === 'string') return `'${v}'`;
+  try {
+    return JSON.stringify(v) ?? String(v);
+  } catch {
+    return String(v);
+  }
+}
+
+/**
+ * Thrown when a block does not fit a stage (wrong domain, length mismatch,
+ * timing change mid-stream).
+ */
+export class BlockError extends RangeError {
+  override readonly name = 'BlockError';
+}
