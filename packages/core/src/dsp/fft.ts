@@ -143,8 +143,8 @@ function bluestein(input: Float64Array, out: Float64Array, inverse: boolean): vo
 
 /**
  * Frequency in Hz of DFT bin k for an N-point transform at `sampleRate`:
- * bins above N/2 are negative frequencies.
+ * bins from N/2 on are negative frequencies (the Nyquist bin of an even N is −fs/2).
  */
 export function binFrequency(k: number, n: number, sampleRate: number): number {
-  return ((k < (n + 1) / 2 ? k : k - n) * sampleRate) / n;
+  return ((k < n / 2 ? k : k - n) * sampleRate) / n;
 }

@@ -129,7 +129,7 @@ export function pipe<
   s7: Stage<NoInfer<G>, H, D7>,
   s8: Stage<NoInfer<H>, I, D8>,
 ): Pipeline<A, I, [D1, D2, D3, D4, D5, D6, D7, D8]>;
-export function pipe(...stages: AnyStage[]): Pipeline<Domain, Domain, unknown[]>;
+// Longer chains nest: a pipeline is itself a stage.
 export function pipe(...stages: AnyStage[]): Pipeline<Domain, Domain, unknown[]> {
   if (stages.length === 0) throw new RangeError('pipe: expected at least one stage');
   for (let i = 1; i < stages.length; i++) {

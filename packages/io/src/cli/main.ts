@@ -1,0 +1,63 @@
+#!/usr/bin/env node
+import { LIBRARY_VERSION, OptionError } from '@intradyne/core';
+import { OutputExistsError } from '../write/atomic.js';
+import { DEMO_HELP, demoCommand } from './demo.js';
+import { EXIT, UsageError } from './errors.js';
+import { SIMULATE_HELP, simulateCommand } from './simulate.js';
+
+type Command = (argv: readonly string[], out: (s: string) => void, err: (s: string) => void) => number;
+
+const COMMANDS: Record<string, { run: Command; summary: string; help: string }> = {
+  simulate: { run: simulateCommand, summary: 'write simulated captures with descriptors and references', help: SIMULATE_HELP },
+  demo: { run: demoCommand, summary: 'simulate the built-in demo scenario and print what was made', help: DEMO_HELP },
+};
+
+export const MAIN_HELP = `intradyne ${LIBRARY_VERSION}: offline DSP for dual-polarization coherent receiver captures
+
+Usage: intradyne COMMAND [options]
+
+Commands:
+${Object.entries(COMMANDS)
+  .map(([name, c]) => `  ${name.padEnd(10)} ${c.summary}`)
+  .join('\n')}
+
+'intradyne COMMAND --help' describes a command.
+Exit codes: 0 done, 1 the analysis failed, 2 bad usage or bad input.
+`;
+
+/** Runs the command line; returns the exit code. */
+export function main(
+  argv: readonly string[],
+  out = (s: string) => void process.stdout.write(s),
+  err = (s: string) => void process.stderr.write(s),
+): number {
+  const [name, ...rest] = argv;
+  if (name === undefined || name === '--help' || name === '-h' || name === 'help') {
+    out(MAIN_HELP);
+    return name === undefined ? EXIT.badInput : EXIT.done;
+  }
+  if (name === '--version') {
+    out(`${LIBRARY_VERSION}\n`);
+    return EXIT.done;
+  }
+  const command = COMMANDS[name];
+  if (!command) {
+    err(`intradyne: unknown command '${name}'; expected one of ${Object.keys(COMMANDS).join(', ')}\n`);
+    return EXIT.badInput;
+  }
+  try {
+    return command.run(rest, out, err);
+  } catch (e) {
+    if (e instanceof UsageError || e instanceof OptionError || e instanceof OutputExistsError) {
+      err(`${e.message}\n`);
+      return EXIT.badInput;
+    }
+    throw e;
+  }
+}
+
+// Run when executed directly (as the bin or with node), not when imported.
+const invoked = process.argv[1] ? new URL(`file://${process.argv[1]}`).pathname : '';
+if (invoked && import.meta.url.endsWith(invoked.replace(/^.*\/dist\//, '/dist/'))) {
+  process.exitCode = main(process.argv.slice(2));
+}

@@ -1,0 +1,75 @@
+import type { DualPol, ScopeChannels } from '@intradyne/core';
+import { type AtomicWriteOptions, writeFileAtomic } from './atomic.js';
+
+/** Lines per write call: large enough to amortize system calls, small enough to bound memory. */
+const LINES_PER_CHUNK = 8192;
+
+/** Shortest text that reads back as the same float64. */
+function num(v: number): string {
+  return Object.is(v, -0) ? '0' : String(v);
+}
+
+export interface CaptureCsvOptions extends AtomicWriteOptions {
+  /** Comment lines written first, each prefixed with '# '. */
+  readonly comments?: readonly string[];
+  /** Also write a time column `t` in seconds (from the sample rate). */
+  readonly timeColumn?: boolean;
+}
+
+/**
+ * Writes a four-channel capture as CSV: optional `#` comment lines, a header
+ * row `xi,xq,yi,yq` (preceded by `t` with `timeColumn`), one row per sample.
+ * Atomic (temporary file, then rename).
+ */
+export function writeCaptureCsv(path: string, channels: ScopeChannels, options: CaptureCsvOptions = {}): void {
+  const { xi, xq, yi, yq, sampleRate } = channels;
+  writeFileAtomic(
+    path,
+    (append) => {
+      for (const c of options.comments ?? []) append(`# ${c}\n`);
+      append(options.timeColumn ? 't,xi,xq,yi,yq\n' : 'xi,xq,yi,yq\n');
+      let lines: string[] = [];
+      for (let n = 0; n < xi.length; n++) {
+        const row = `${num(xi[n])},${num(xq[n])},${num(yi[n])},${num(yq[n])}`;
+        lines.push(options.timeColumn ? `${num(n / sampleRate)},${row}` : row);
+        if (lines.length === LINES_PER_CHUNK) {
+          append(`${lines.join('\n')}\n`);
+          lines = [];
+        }
+      }
+      if (lines.length > 0) append(`${lines.join('\n')}\n`);
+    },
+    options,
+  );
+}
+
+/**
+ * Writes reference symbols as CSV with header `x_re,x_im,y_re,y_im`, one row
+ * per transmitted symbol. Atomic.
+ */
+export function writeReferenceCsv(path: string, symbols: DualPol, options: CaptureCsvOptions = {}): void {
+  const { x, y } = symbols;
+  writeFileAtomic(
+    path,
+    (append) => {
+      for (const c of options.comments ?? []) append(`# ${c}\n`);
+      append('x_re,x_im,y_re,y_im\n');
+      let lines: string[] = [];
+      const n = x.length >> 1;
+      for (let k = 0; k < n; k++) {
+        lines.push(`${num(x[2 * k])},${num(x[2 * k + 1])},${num(y[2 * k])},${num(y[2 * k + 1])}`);
+        if (lines.length === LINES_PER_CHUNK) {
+          append(`${lines.join('\n')}\n`);
+          lines = [];
+        }
+      }
+      if (lines.length > 0) append(`${lines.join('\n')}\n`);
+    },
+    options,
+  );
+}
+
+/** Writes a JSON document (2-space indented) atomically. */
+export function writeJsonAtomic(path: string, value: unknown, options: AtomicWriteOptions = {}): void {
+  writeFileAtomic(path, (append) => append(`${JSON.stringify(value, null, 2)}\n`), options);
+}
