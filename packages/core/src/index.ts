@@ -9,6 +9,7 @@ export * from './dsp/fft.js';
 export * from './dsp/rrc.js';
 export * from './filter/fir.js';
 export * from './frontend/combine-channels.js';
+export * from './hash/sha256.js';
 export * from './modulation/constellation.js';
 export * from './physics/jones.js';
 export * from './physics/link.js';
