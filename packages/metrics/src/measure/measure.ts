@@ -46,13 +46,13 @@ export interface QualityFigures {
   readonly symbols: number;
   /** Data-aided rms EVM, a fraction, normalized as `evmNormalization`. */
   readonly evmRms: number;
-  /** Data-aided SNR (Es/N0), dB: Σ|a|² / Σ|z − a|². */
+  /** Data-aided SNR (Es/N0), dB: Σ|a|² / Σ|z − a|² (Infinity for a noiseless stream). */
   readonly snrDb: number;
   /** SNR from the EVM against the average constellation power, 1/EVM², dB. */
   readonly snrFromEvmDb: number;
   /** Q-factor from `ber`, dB (a lower bound when `berIsUpperBound`); null when the BER is 0.5 or more. */
   readonly qDb: number | null;
-  /** Bit-wise GMI, bits per symbol per polarization. */
+  /** Bit-wise GMI, bits per symbol per polarization (log2 M for a noiseless stream). */
   readonly gmi: number;
   /** GMI / log2 M. */
   readonly ngmi: number;

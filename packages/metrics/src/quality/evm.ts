@@ -37,7 +37,12 @@ export function evmRms(
   return Math.sqrt(errorPower(received, reference) / n / constellationPower(c, normalization));
 }
 
-/** Σ|rₖ − aₖ|² over all symbols. */
+/**
+ * Error energy Σ|rₖ − aₖ|² over all symbols (not divided by N).
+ * @param received N complex symbols
+ * @param reference N complex points (the caller checks the lengths; extra reference samples are ignored)
+ * @example errorPower(z, a) / (z.length / 2) // mean error power
+ */
 export function errorPower(received: ComplexArray, reference: ComplexArray): number {
   let e = 0;
   for (let i = 0; i < received.length; i++) {
@@ -47,7 +52,10 @@ export function errorPower(received: ComplexArray, reference: ComplexArray): num
   return e;
 }
 
-/** Average (mean |a|² over the points, 1) or peak (max |a|²) power of a constellation. */
+/**
+ * Average (mean |a|² over the points: 1) or peak (max |a|²) power of a constellation.
+ * @example constellationPower(constellation('16qam'), 'peak') // 1.8
+ */
 export function constellationPower(c: Constellation, normalization: EvmNormalization): number {
   let sum = 0;
   let peak = 0;

@@ -54,7 +54,10 @@ export function qFactorDb(ber: number): number {
   return 20 * Math.log10(Math.SQRT2 * erfcinv(2 * ber));
 }
 
-/** Linear power ratio to dB. */
+/**
+ * A linear power ratio in dB, 10·log10(ratio) (Infinity for an infinite ratio).
+ * @example toDb(100) // 20
+ */
 export function toDb(ratio: number): number {
   return 10 * Math.log10(ratio);
 }

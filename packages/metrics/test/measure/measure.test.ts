@@ -1,4 +1,13 @@
-import { type ComplexArray, complexArray, type DualPol, idealMatchedFilter, OptionError, Rng, simulate } from '@intradyne/core';
+import {
+  type ComplexArray,
+  complexArray,
+  concatComplex,
+  type DualPol,
+  idealMatchedFilter,
+  OptionError,
+  Rng,
+  simulate,
+} from '@intradyne/core';
 import { describe, expect, it } from 'vitest';
 import { clopperPearson } from '../../src/counting/clopper-pearson.js';
 import { measure, ReferenceNotFoundError } from '../../src/measure/measure.js';
@@ -116,6 +125,33 @@ describe('measure', () => {
     const maxLog = measure(received, ref, '16qam', { skipSymbols: 500, bitMetric: 'max-log' });
     expect(maxLog.gmi).toBeLessThanOrEqual(skipped.gmi + 1e-9);
     expect(measure(received, ref, '16qam').ber).toBeGreaterThan(0.02);
+  });
+
+  it('measures a capture longer than its repeating reference (two periods of a simulated QPSK link)', () => {
+    // The simulator's transmission is periodic in its N symbols, so two copies of the ideal
+    // receiver's output are a capture of 2N symbols from an N-symbol reference.
+    const nq = 4096;
+    const q = simulate({ seed: 22, modulation: 'qpsk', symbols: nq, symbolRate: 32e9, channel: { esN0Db: 9.8 } });
+    const one = idealSymbols(q, nq);
+    const twice = { x: concatComplex([one.x, one.x]), y: concatComplex([one.y, one.y]) };
+    const r = measure(twice, q.reference, 'qpsk', { skipSymbols: 100 });
+    expect(r.symbols).toBe(2 * (2 * nq - 100));
+    expect(r.perPol.x.alignment.delay).toBe(0);
+    // Every symbol counted twice but the second copy's errors repeat the first: the interval of
+    // one period's count, 4 bits × 4096 × 2 pols ≈ 32,768 bits at BER 1e-3 (±35 %), holds the theory.
+    expect(clopperPearson(Math.round(r.bitErrors / 2), r.bits / 2)[0]).toBeLessThan(1e-3);
+    expect(clopperPearson(Math.round(r.bitErrors / 2), r.bits / 2)[1]).toBeGreaterThan(1e-3);
+  });
+
+  it('reports the limits for a noiseless stream: infinite SNR, log2 M bits, BER as an upper bound', () => {
+    const rng = new Rng(7);
+    const ref = { x: randomSymbols('64qam', 1000, rng).symbols, y: randomSymbols('64qam', 1000, rng).symbols };
+    const r = measure(ref, ref, '64qam');
+    expect(r.snrDb).toBe(Number.POSITIVE_INFINITY);
+    expect(r.evmRms).toBe(0);
+    expect(r.gmi).toBe(6);
+    expect(r.ngmi).toBe(1);
+    expect(r.berIsUpperBound).toBe(true);
   });
 
   it('throws ReferenceNotFoundError, with the findings, when the reference is not in the capture', () => {
