@@ -27,6 +27,18 @@ export interface MeasureOptions extends SyncOptions {
   readonly bitMetric?: BitMetric;
   /** Symbol rate, Bd: when given, the AIR in bit/s is reported. */
   readonly symbolRate?: number;
+  /** Keep the aligned, normalized symbols in the result (for constellation plots), default false. */
+  readonly keepAligned?: boolean;
+}
+
+/** One polarization's symbols as measured, from `skipSymbols` on: N = Nr − skipSymbols of each. */
+export interface AlignedSymbols {
+  /** Received symbols with rotation and conjugation undone, divided by the gain (unit constellation scale). */
+  readonly received: ComplexArray;
+  /** The transmitted points they are compared with. */
+  readonly reference: ComplexArray;
+  /** The transmitted labels. */
+  readonly labels: Uint8Array;
 }
 
 /** The figures reported per polarization and in total. */
@@ -80,6 +92,8 @@ export interface Measurement extends QualityFigures {
   readonly airBitsPerSecond: number | null;
   readonly evmNormalization: EvmNormalization;
   readonly bitMetric: BitMetric;
+  /** The aligned symbols per polarization when `keepAligned` was set; otherwise null. */
+  readonly aligned: { readonly x: AlignedSymbols; readonly y: AlignedSymbols } | null;
 }
 
 /**
@@ -168,6 +182,7 @@ export function measure(
     airBitsPerSecond: symbolRate === undefined ? null : airBitsPerSecond(parts.x.figures.gmi, parts.y.figures.gmi, symbolRate),
     evmNormalization,
     bitMetric,
+    aligned: options.keepAligned ? { x: parts.x.aligned, y: parts.y.aligned } : null,
   };
 }
 
@@ -177,6 +192,7 @@ interface PolPart {
   signalEnergy: number;
   figures: QualityFigures;
   result: PolMeasurement;
+  aligned: AlignedSymbols;
 }
 
 function measurePolarization(
@@ -234,7 +250,14 @@ function measurePolarization(
   const info =
     noiseVariance > 0 ? informationEstimate(c, z, sent, noiseVariance, bitMetric) : { gmi: c.bitsPerSymbol, mi: c.bitsPerSymbol };
   const f = figures(c, counts, errorEnergy, signalEnergy, info.gmi, info.mi, evmNormalization);
-  return { counts, errorEnergy, signalEnergy, figures: f, result: { ...f, gain, noiseVariance, alignment: a } };
+  return {
+    counts,
+    errorEnergy,
+    signalEnergy,
+    figures: f,
+    result: { ...f, gain, noiseVariance, alignment: a },
+    aligned: { received: z, reference: ref, labels: sent },
+  };
 }
 
 function figures(

@@ -106,6 +106,25 @@ describe('measure', () => {
     expect(r.airBitsPerSecond).toBeNull();
     expect(r.perPol.x.alignment.delay).toBe(3);
     expect(r.perPol.y.alignment.delay).toBe(4);
+    expect(r.aligned).toBeNull();
+  });
+
+  it('keeps the aligned symbols on request: undone, normalized, against their reference points', () => {
+    const rng = new Rng(8);
+    const ref = { x: randomSymbols('16qam', 1024, rng).symbols, y: randomSymbols('16qam', 1024, rng).symbols };
+    const opts = { gain: 3, snrDb: Number.POSITIVE_INFINITY, garbage: 0, rng };
+    const received = {
+      x: impairedStream(ref, 2000, { source: 'y', delay: 10, quarterTurns: 3, conjugated: true }, opts),
+      y: impairedStream(ref, 2000, { source: 'x', delay: 11, quarterTurns: 1, conjugated: false }, opts),
+    };
+    const r = measure(received, ref, '16qam', { skipSymbols: 50, keepAligned: true });
+    const a = r.aligned!;
+    expect(a.x.received.length).toBe(2 * 1950);
+    // Received x symbol 50 carries reference y symbol (50 − 10) = 40; noiseless, so equal to rounding.
+    expect(a.x.received[0]).toBeCloseTo(ref.y[80], 12);
+    expect(a.x.received[1]).toBeCloseTo(ref.y[81], 12);
+    expect(a.y.reference[0]).toBeCloseTo(ref.x[2 * 39], 12);
+    expect(a.y.labels.length).toBe(1950);
   });
 
   it('leaves the skipped symbols out, and peak EVM is average EVM scaled by √(1/1.8) for 16QAM', () => {
