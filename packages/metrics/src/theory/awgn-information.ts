@@ -91,3 +91,29 @@ function logSumExp(metric: Float64Array, L: number, mask: number, want: number, 
   for (let l = 0; l < L; l++) if (!labels || (labels[l] & mask) === want) s += Math.exp(metric[l] - max);
   return max + Math.log(s);
 }
+
+/**
+ * The Es/N0 (dB) at which Gray square QAM in AWGN reaches a target NGMI
+ * (GMI / log2 M): the inverse of {@link theoryGmi}, by bisection on the dB
+ * scale (the GMI is strictly increasing in the SNR), to 1e-9 dB. With an
+ * NGMI FEC threshold it gives the SNR a soft-decision code needs.
+ * @param ngmi target NGMI in (0, 1)
+ * @returns Es/N0, dB
+ * @throws RangeError for an NGMI outside (0, 1) or one that needs an SNR outside ±60 dB
+ * @example snrForNgmi('16qam', 0.8) // Es/N0 for 3.2 bit per symbol
+ */
+export function snrForNgmi(modulation: ModulationName, ngmi: number, options: QuadratureOptions = {}): number {
+  if (!(ngmi > 0 && ngmi < 1)) throw new RangeError(`snrForNgmi: expected an NGMI in (0, 1), received ${ngmi}`);
+  const target = ngmi * constellation(modulation).bitsPerSymbol;
+  let lo = -60;
+  let hi = 60;
+  if (theoryGmi(modulation, lo, options) > target || theoryGmi(modulation, hi, options) < target) {
+    throw new RangeError(`snrForNgmi: an NGMI of ${ngmi} is not reached between ${lo} and ${hi} dB`);
+  }
+  while (hi - lo > 1e-9) {
+    const mid = 0.5 * (lo + hi);
+    if (theoryGmi(modulation, mid, options) < target) lo = mid;
+    else hi = mid;
+  }
+  return 0.5 * (lo + hi);
+}

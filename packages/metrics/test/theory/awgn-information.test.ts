@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { theoryGmi, theoryMi } from '../../src/theory/awgn-information.js';
+import { snrForNgmi, theoryGmi, theoryMi } from '../../src/theory/awgn-information.js';
 
 // MI of BPSK (±1) in real AWGN of variance s², by the trapezoid rule on a
 // fine grid — another quadrature than the one under test:
@@ -60,5 +60,23 @@ describe('theoryGmi and theoryMi (AWGN, Gauss–Hermite)', () => {
 
   it('rejects NaN', () => {
     expect(() => theoryGmi('qpsk', Number.NaN)).toThrow(RangeError);
+  });
+});
+
+describe('snrForNgmi', () => {
+  it('inverts theoryGmi', () => {
+    for (const m of ['qpsk', '16qam', '64qam'] as const) {
+      const bits = m === 'qpsk' ? 2 : m === '16qam' ? 4 : 6;
+      for (const ngmi of [0.3, 0.8, 1 / 1.2, 0.95]) {
+        // Bisection to 1e-9 dB; the GMI slope is below 1 bit/dB, so 1e-8 bit is loose.
+        expect(Math.abs(theoryGmi(m, snrForNgmi(m, ngmi)) / bits - ngmi)).toBeLessThan(1e-8);
+      }
+    }
+    // 16QAM at 10 dB has GMI 3.1636 bit: NGMI 0.7909.
+    expect(Math.abs(snrForNgmi('16qam', 3.1636 / 4) - 10)).toBeLessThan(1e-3);
+  });
+
+  it('rejects an NGMI outside (0, 1)', () => {
+    for (const bad of [0, 1, 1.5, Number.NaN]) expect(() => snrForNgmi('qpsk', bad)).toThrow(RangeError);
   });
 });
