@@ -200,6 +200,12 @@ class PhaseRecoveryStage implements Stage<'symbols', 'symbols', PhaseRecoveryDia
     if (block.domain !== 'symbols') throw new BlockError(`${this.name}: expected a 'symbols' block, received '${block.domain}'`);
     if (block.x.length !== block.y.length)
       throw new BlockError(`${this.name}: x has ${block.x.length >> 1} symbols, y has ${block.y.length >> 1}`);
+    if (!(block.sampleRate > 0) || !Number.isFinite(block.sampleRate))
+      throw new BlockError(
+        `${this.name}: expected a positive symbol rate as the block's sample rate, received ${block.sampleRate}`,
+      );
+    if (!Number.isNaN(this.sampleRate) && block.sampleRate !== this.sampleRate)
+      throw new BlockError(`${this.name}: the symbol rate changed mid-stream from ${this.sampleRate} to ${block.sampleRate}`);
     this.sampleRate = block.sampleRate;
     const n = block.x.length >> 1;
     this.pushed += n;

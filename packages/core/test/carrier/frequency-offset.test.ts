@@ -20,7 +20,7 @@ function block(x: ComplexArray, y: ComplexArray): FieldBlock<'symbols'> {
 describe('fourth-power periodogram (Selmi, Jaouën, Ciblat, ECOC 2009)', () => {
   // The issue's requirement: within 1 MHz at 32 GBd and Es/N0 = 15 dB for
   // offsets across ±3 GHz. 8192 symbols: the sub-bin search gives a worst
-  // error of about 0.4 MHz over these cases (0.7 MHz at 4096), so 1 MHz is
+  // error of 0.51 MHz over these cases (0.7 MHz at 4096), so 1 MHz is
   // met with margin while the test stays small. 100 kHz of linewidth, a
   // typical external-cavity pair (common practice), is on the signal.
   for (const modulation of MODULATIONS) {
@@ -53,13 +53,13 @@ describe('fourth-power periodogram (Selmi, Jaouën, Ciblat, ECOC 2009)', () => {
 describe('differential estimator (Leven et al., IEEE PTL 19(6), 2007)', () => {
   // Its variance falls only as 1/N (against 1/N³ for the periodogram), and
   // the fourth power of a product of two noisy QAM symbols is noisy: at
-  // 15 dB and 16384 symbols these seeds give worst errors of about 7 MHz
-  // (QPSK) and 130–200 MHz (16/64QAM). The 1 MHz requirement is carried by
+  // 15 dB and 16384 symbols these seeds give worst errors of 9 MHz (QPSK),
+  // 42 MHz (16QAM) and 139 MHz (64QAM). The 1 MHz requirement is carried by
   // the periodogram, the stage's default; here the bounds, about 3× the
   // worst error measured, guard the estimator's sign, scale and range.
-  const bound = { qpsk: 20e6, '16qam': 400e6, '64qam': 600e6 };
+  const bound = { qpsk: 30e6, '16qam': 150e6, '64qam': 450e6 };
   for (const modulation of MODULATIONS) {
-    it(`is unbiased within ${bound[modulation] / 1e6} MHz across ±3 GHz for ${modulation} at 15 dB`, () => {
+    it(`is within ${bound[modulation] / 1e6} MHz across ±3 GHz for ${modulation} at 15 dB`, () => {
       for (const [i, f] of OFFSETS.entries()) {
         const s = carrierSignal({ seed: 20 + i, modulation, symbols: 16384, esN0Db: 15, linewidthHz: 100e3, freqOffsetHz: f });
         expect(Math.abs(estimateOffsetDifferential(s.x, s.y, RS) - f)).toBeLessThan(bound[modulation]);
