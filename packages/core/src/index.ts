@@ -40,7 +40,12 @@ export {
 } from './carrier/phase-recovery-stage.js';
 export { QUARTER_TURN, unwrapPhase, wrapAngle } from './carrier/phase-unwrap.js';
 export { cycleSlipsFromPhase, type PhaseJumpOptions, PhaseJumpSlipDetector } from './carrier/slips-phase-jump.js';
-export { cycleSlipsAgainstReference, ReferenceSlipDetector, type ReferenceSlipOptions } from './carrier/slips-reference.js';
+export {
+  cycleSlipsAgainstReference,
+  ReferenceSlipDetector,
+  type ReferenceSlipOptions,
+  type ReferenceSlipSearchOptions,
+} from './carrier/slips-reference.js';
 export {
   ViterbiViterbiKernel,
   type ViterbiViterbiOptions,

@@ -21,7 +21,13 @@ export interface PhaseRecoveryOptions {
    * are detected against them; otherwise by phase-jump statistics.
    */
   readonly reference?: DualPol;
-  /** Window of the slip detector, symbols (integer ≥ 8; default 64 against a reference, 32 for phase jumps). */
+  /**
+   * With a reference: only every P-th symbol is known (pilots) — output
+   * symbol m·P was sent as reference symbol m mod length (integer ≥ 1,
+   * default 1). Slip positions are then those of the first pilot after the slip.
+   */
+  readonly pilotPeriod?: number;
+  /** Window of the slip detector (integer ≥ 8): known symbols against a reference (default 64), symbols for phase jumps (default 32). */
   readonly slipWindow?: number;
   /** Phase-jump threshold, rad (in (0, π/2), default π/4). */
   readonly slipThreshold?: number;
@@ -142,6 +148,7 @@ class PhaseRecoveryStage implements Stage<'symbols', 'symbols', PhaseRecoveryDia
   private readonly delay: number;
   private readonly reference: DualPol | null;
   private readonly recordPhase: boolean;
+  private readonly pilotPeriod: number;
   /** Real symbols received, per polarization. */
   private pushed = 0;
   /** Pushes into the kernels, absent drain symbols included. */
@@ -163,6 +170,9 @@ class PhaseRecoveryStage implements Stage<'symbols', 'symbols', PhaseRecoveryDia
         throw new OptionError(name, 'reference', 'x and y of equal, non-zero length', { x: ref.x?.length, y: ref.y?.length });
     }
     checkInteger(name, 'slipWindow', o.slipWindow, 8);
+    checkInteger(name, 'pilotPeriod', o.pilotPeriod, 1);
+    if (o.pilotPeriod !== undefined && !ref)
+      throw new OptionError(name, 'pilotPeriod', 'a reference holding the pilots', o.pilotPeriod);
     const th = o.slipThreshold;
     if (th !== undefined && !(th > 0 && th < Math.PI / 2))
       throw new OptionError(name, 'slipThreshold', 'a value in (0, π/2) rad', th);
@@ -190,10 +200,12 @@ class PhaseRecoveryStage implements Stage<'symbols', 'symbols', PhaseRecoveryDia
     this.y = pol(make());
     this.reference = ref;
     this.recordPhase = o.recordPhase ?? false;
+    this.pilotPeriod = o.pilotPeriod ?? 1;
     this.record = { ...record, linewidthLags: [lags[0], lags[1]], recordPhase: this.recordPhase };
     if (o.slipWindow !== undefined) this.record.slipWindow = o.slipWindow;
     if (th !== undefined) this.record.slipThreshold = th;
     if (ref) this.record.referenceSymbols = ref.x.length >> 1;
+    if (o.pilotPeriod !== undefined) this.record.pilotPeriod = o.pilotPeriod;
   }
 
   process(block: FieldBlock<'symbols'>): FieldBlock<'symbols'> {
@@ -237,8 +249,10 @@ class PhaseRecoveryStage implements Stage<'symbols', 'symbols', PhaseRecoveryDia
     this.run(this.y, empty, drain, false, outY, 'y');
     this.kernelPushed += drain;
     this.delivered += got;
-    this.x.jumpSlips?.finish();
-    this.y.jumpSlips?.finish();
+    for (const p of [this.x, this.y]) {
+      p.jumpSlips?.finish();
+      p.refSlips?.finish();
+    }
     return fieldBlock('symbols', outX, outY, this.sampleRate, 1);
   }
 
@@ -317,9 +331,9 @@ class PhaseRecoveryStage implements Stage<'symbols', 'symbols', PhaseRecoveryDia
       out[2 * written + 1] = oi;
       if (phases) phases[written] = theta;
       p.linewidth.push(theta);
-      if (ref && p.refSlips) {
-        const j = centre % refLen;
-        p.refSlips.push(ref[2 * j], ref[2 * j + 1], or, oi);
+      if (ref && p.refSlips && centre % this.pilotPeriod === 0) {
+        const j = (centre / this.pilotPeriod) % refLen;
+        p.refSlips.push(ref[2 * j], ref[2 * j + 1], or, oi, centre);
       }
       p.jumpSlips?.push(theta);
       written++;

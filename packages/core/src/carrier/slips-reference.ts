@@ -4,45 +4,70 @@ import { QUARTER_TURN, wrapAngle } from './phase-unwrap.js';
 
 /** Options of the reference-based slip detector. */
 export interface ReferenceSlipOptions {
-  /** W: symbols in the sliding comparison window (integer ≥ 8, default 64). */
+  /** W: known symbols in the sliding comparison window (integer ≥ 8, default 64). */
   readonly window?: number;
 }
 
+/** Options of {@link cycleSlipsAgainstReference}. */
+export interface ReferenceSlipSearchOptions extends ReferenceSlipOptions {
+  /**
+   * P: with pilots, only every P-th symbol is known — symbol m·P of the
+   * stream was sent as reference symbol m mod length (integer ≥ 1, default
+   * 1: every symbol is known). A slip's position is then that of the first
+   * pilot after it.
+   */
+  readonly pilotPeriod?: number;
+}
+
 /**
- * Cycle-slip detection against the transmitted symbols (or known pilots).
+ * Cycle-slip detection against the transmitted symbols (or known pilots:
+ * feed only the known symbols, with their stream index).
  *
  * With uₖ = aₖ·r*ₖ (reference times the conjugate of the recovered symbol),
  * arg uₖ is the error of the recovered phase. Over a sliding window of W
- * symbols, Cₖ = Σ uᵢ; the rotation in force q (quarter turns) is set from the
- * first full window (the π/2 ambiguity, not a slip) and a slip of s quarter
- * turns is declared when
+ * known symbols, Cₖ = Σ uᵢ; the rotation in force q (quarter turns) is set
+ * from the first full window (the π/2 ambiguity, not a slip). A slip is
+ * suspected when
  *
- *   |wrap(arg Cₖ − q·π/2)| > 3π/8,   s = round(wrap(arg Cₖ − q·π/2) / (π/2))
+ *   |wrap(arg Cₖ − q·π/2)| > 3π/8
  *
- * (hysteresis: half-way between quadrants plus π/8, so noise does not make a
- * slip come and go). Its position is the split of the window that best fits
- * rotation q before and q + s after: p = argmax_p Re(e^(−jqπ/2)·Σ_{i<p} uᵢ +
- * e^(−j(q+s)π/2)·Σ_{i≥p} uᵢ). Streaming: O(1) per symbol, O(W) per slip.
+ * (half-way between quadrants plus π/8, so noise does not make a slip come
+ * and go); it is placed at the split of the window that best fits rotation q
+ * before and q + s' after, s' = round(wrap(arg Cₖ − q·π/2)/(π/2)):
+ * p = argmax_p Re(e^(−jqπ/2)·Σ_{i<p} uᵢ + e^(−j(q+s')π/2)·Σ_{i≥p} uᵢ).
+ * Its size is then decided on the W symbols from p on, all after the slip:
+ * s = round(wrap(arg Σ_{i≥p} uᵢ − q·π/2)/(π/2)), so that a half turn (whose
+ * window sum passes near zero on its way) counts once as 2, and a suspicion
+ * that does not hold (s = 0) is dropped. Streaming: O(1) per symbol, O(W)
+ * per slip.
  */
 export class ReferenceSlipDetector {
   private readonly w: number;
   private readonly re: Float64Array;
   private readonly im: Float64Array;
+  /** Stream index of each window entry. */
+  private readonly at: Float64Array;
   private sumRe = 0;
   private sumIm = 0;
   private seen = 0;
   private q = 0;
   private started = false;
+  /** Push count of the split of a suspected slip, −1 when none. */
+  private pendingAt = -1;
   private readonly found: CycleSlip[] = [];
 
   constructor(options: ReferenceSlipOptions = {}) {
     this.w = options.window ?? 64;
     this.re = new Float64Array(this.w);
     this.im = new Float64Array(this.w);
+    this.at = new Float64Array(this.w);
   }
 
-  /** Feeds symbol k: the reference aₖ and the recovered rₖ. */
-  push(aRe: number, aIm: number, rRe: number, rIm: number): void {
+  /**
+   * Feeds a known symbol: the reference aₖ and the recovered rₖ, with its
+   * index k in the stream (increasing; default: the count of earlier pushes).
+   */
+  push(aRe: number, aIm: number, rRe: number, rIm: number, index = this.seen): void {
     const ur = aRe * rRe + aIm * rIm;
     const ui = aIm * rRe - aRe * rIm;
     const slot = this.seen % this.w;
@@ -50,8 +75,14 @@ export class ReferenceSlipDetector {
     this.sumIm += ui - this.im[slot];
     this.re[slot] = ur;
     this.im[slot] = ui;
+    this.at[slot] = index;
     this.seen++;
     if (this.seen < this.w) return;
+    if (this.pendingAt >= 0) {
+      // A suspected slip is decided once the window holds only symbols after it.
+      if (this.seen - this.pendingAt >= this.w) this.decide();
+      return;
+    }
     const a = Math.atan2(this.sumIm, this.sumRe);
     if (!this.started) {
       this.q = Math.round(a / QUARTER_TURN);
@@ -60,10 +91,14 @@ export class ReferenceSlipDetector {
     }
     const res = wrapAngle(a - this.q * QUARTER_TURN);
     if (Math.abs(res) <= (3 * Math.PI) / 8) return;
-    // A half turn is reported as +2 whichever way it went (e^(jπ) = e^(−jπ)).
-    const s = Math.abs(Math.round(res / QUARTER_TURN)) === 2 ? 2 : Math.round(res / QUARTER_TURN);
-    this.found.push({ position: this.locate(s), quadrants: s });
-    this.q += s;
+    this.pendingAt = this.locate(Math.round(res / QUARTER_TURN));
+    if (this.seen - this.pendingAt >= this.w) this.decide();
+  }
+
+  /** Ends the stream: a suspected slip is decided on the symbols after it that there are. */
+  finish(): void {
+    if (this.pendingAt >= 0 && this.pendingAt < this.seen) this.decide();
+    this.pendingAt = -1;
   }
 
   /** The slips found so far, in stream order. */
@@ -74,14 +109,17 @@ export class ReferenceSlipDetector {
   reset(): void {
     this.re.fill(0);
     this.im.fill(0);
+    this.at.fill(0);
     this.sumRe = 0;
     this.sumIm = 0;
     this.seen = 0;
     this.q = 0;
     this.started = false;
+    this.pendingAt = -1;
     this.found.length = 0;
   }
 
+  /** The push count of the best split for a slip of s quarter turns within the window. */
   private locate(s: number): number {
     const first = this.seen - this.w;
     const c0 = Math.cos(this.q * QUARTER_TURN);
@@ -93,7 +131,7 @@ export class ReferenceSlipDetector {
     let beforeIm = 0;
     let best = first;
     let bestScore = Number.NEGATIVE_INFINITY;
-    for (let p = first; p <= this.seen; p++) {
+    for (let p = first; p < this.seen; p++) {
       const afterRe = this.sumRe - beforeRe;
       const afterIm = this.sumIm - beforeIm;
       const score = beforeRe * c0 + beforeIm * s0 + afterRe * c1 + afterIm * s1;
@@ -101,39 +139,59 @@ export class ReferenceSlipDetector {
         bestScore = score;
         best = p;
       }
-      if (p < this.seen) {
-        const slot = p % this.w;
-        beforeRe += this.re[slot];
-        beforeIm += this.im[slot];
-      }
+      const slot = p % this.w;
+      beforeRe += this.re[slot];
+      beforeIm += this.im[slot];
     }
     return best;
+  }
+
+  /** Sizes the suspected slip on the window entries from its split on, records it when non-zero. */
+  private decide(): void {
+    let re = 0;
+    let im = 0;
+    for (let p = this.pendingAt; p < this.seen; p++) {
+      re += this.re[p % this.w];
+      im += this.im[p % this.w];
+    }
+    const raw = Math.round(wrapAngle(Math.atan2(im, re) - this.q * QUARTER_TURN) / QUARTER_TURN);
+    // A half turn is reported as +2 whichever way it went (e^(jπ) = e^(−jπ)).
+    const s = Math.abs(raw) === 2 ? 2 : raw;
+    if (s !== 0) {
+      this.found.push({ position: this.at[this.pendingAt % this.w], quadrants: s });
+      this.q += s;
+    }
+    this.pendingAt = -1;
   }
 }
 
 /**
  * Cycle slips of recovered symbols against the transmitted ones (one
  * polarization, aligned: recovered symbol k was sent as reference symbol
- * k mod length).
+ * k mod length), or against pilots every P symbols (`pilotPeriod`).
  * @param recovered N recovered complex symbols (after carrier recovery)
- * @param reference the transmitted symbols, repeated when shorter than N
- * @throws RangeError when the reference is empty or the window is not an integer ≥ 8
+ * @param reference the transmitted symbols (or the pilots), repeated when shorter than the stream
+ * @throws RangeError when the reference is empty, the window is not an integer ≥ 8 or the pilot period not an integer ≥ 1
  * @example const slips = cycleSlipsAgainstReference(out.x, cap.reference.x); // [{ position, quadrants }, …]
  */
 export function cycleSlipsAgainstReference(
   recovered: ComplexArray,
   reference: ComplexArray,
-  options: ReferenceSlipOptions = {},
+  options: ReferenceSlipSearchOptions = {},
 ): readonly CycleSlip[] {
   const m = reference.length >> 1;
   if (m === 0) throw new RangeError('cycleSlipsAgainstReference: expected a non-empty reference');
   checkWindow('cycleSlipsAgainstReference', options.window);
+  const period = options.pilotPeriod ?? 1;
+  if (!Number.isInteger(period) || period < 1)
+    throw new RangeError(`cycleSlipsAgainstReference: expected a pilot period that is an integer ≥ 1, received ${period}`);
   const d = new ReferenceSlipDetector(options);
   const n = recovered.length >> 1;
-  for (let k = 0; k < n; k++) {
-    const j = k % m;
-    d.push(reference[2 * j], reference[2 * j + 1], recovered[2 * k], recovered[2 * k + 1]);
+  for (let k = 0, pilot = 0; k < n; k += period, pilot++) {
+    const j = pilot % m;
+    d.push(reference[2 * j], reference[2 * j + 1], recovered[2 * k], recovered[2 * k + 1], k);
   }
+  d.finish();
   return d.slips().slice();
 }
 

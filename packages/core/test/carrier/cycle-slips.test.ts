@@ -48,6 +48,31 @@ describe('cycle slips against the reference', () => {
     }
   });
 
+  it('finds them against pilots every 16 symbols too', () => {
+    const s = carrierSignal({ seed: 63, modulation: 'qpsk', symbols: 60000, esN0Db: 14, linewidthHz: 100e3 });
+    for (const z of [s.x, s.y]) {
+      quarterTurnFrom(z, 20000, 1);
+      quarterTurnFrom(z, 40000, -2);
+    }
+    // The pilots: every 16th sent symbol.
+    const pilots = (a: ComplexArray) => {
+      const p = new Float64Array(2 * 3750) as ComplexArray;
+      for (let m = 0; m < 3750; m++) p.set(a.subarray(32 * m, 32 * m + 2), 2 * m);
+      return p;
+    };
+    const stage = viterbiViterbi({ modulation: 'qpsk', reference: { x: pilots(s.refX), y: pilots(s.refY) }, pilotPeriod: 16 });
+    const out = runSymbols(stage, s.x, s.y);
+    const slips = stage.diagnostics().cycleSlips;
+    for (const pol of [slips.x, slips.y]) {
+      expect(pol.map((e) => e.quadrants)).toEqual([-1, 2]);
+      // Both jumps fall on a pilot: the first pilot after each is the jump itself, give or take one pilot.
+      expect(Math.abs(pol[0].position - 20000)).toBeLessThanOrEqual(16);
+      expect(Math.abs(pol[1].position - 40000)).toBeLessThanOrEqual(16);
+    }
+    expect(cycleSlipsAgainstReference(out.x, pilots(s.refX), { pilotPeriod: 16 })).toEqual(slips.x);
+    expect(() => viterbiViterbi({ modulation: 'qpsk', pilotPeriod: 16 })).toThrow(/pilotPeriod/);
+  });
+
   it('reports none on a clean run, and works as a function', () => {
     const s = carrierSignal({ seed: 62, modulation: 'qpsk', symbols: 20000, esN0Db: 14, linewidthHz: 100e3 });
     const out = runSymbols(viterbiViterbi({ modulation: 'qpsk' }), s.x, s.y);
