@@ -63,7 +63,9 @@ export type BlindPhaseSearchStageOptions = PhaseRecoveryOptions & BlindPhaseSear
 /**
  * Viterbi–Viterbi carrier-phase recovery (see {@link ViterbiViterbiKernel})
  * as a streaming stage on symbol blocks: each polarization is de-rotated by
- * its own unwrapped phase track, rₖ·e^(−jθₖ). Holds back N symbols per block
+ * its own unwrapped phase track, rₖ·e^(−jθₖ) (the polarizations are
+ * estimated separately, so that a residual phase difference between the
+ * equalizer's outputs does no harm). Holds back N symbols per block
  * (the look-ahead) and releases them at `flush`.
  * @throws OptionError for a bad modulation, window, exponent, selection or slip/linewidth option
  * @example const cpr = viterbiViterbi({ modulation: 'qpsk', halfWindow: 10 });
