@@ -5,6 +5,53 @@
  * @packageDocumentation
  */
 
+export {
+  BlindPhaseSearchKernel,
+  type BlindPhaseSearchOptions,
+  blindPhaseSearchPhase,
+  CoarseFinePhaseKernel,
+} from './carrier/blind-phase-search.js';
+export type { CycleSlip, SlipMethod } from './carrier/cycle-slip.js';
+export { estimateOffsetDifferential } from './carrier/differential-frequency.js';
+export {
+  type DifferentialDecoderDiagnostics,
+  differentialQuadrantDecoder,
+  differentialQuadrantEncode,
+  quadrantOf,
+} from './carrier/differential-quadrant.js';
+export { estimateOffsetPeriodogram, type PeriodogramOptions } from './carrier/fourth-power-periodogram.js';
+export {
+  type FrequencyEstimate,
+  type FrequencyEstimator,
+  type FrequencyOffsetDiagnostics,
+  type FrequencyOffsetOptions,
+  frequencyOffsetRecovery,
+} from './carrier/frequency-offset-stage.js';
+export { removeFrequencyOffset } from './carrier/frequency-removal.js';
+export { estimateLinewidth, LinewidthAccumulator, type LinewidthOptions } from './carrier/linewidth.js';
+export { type PhaseKernel, runKernel } from './carrier/phase-kernel.js';
+export {
+  type BlindPhaseSearchStageOptions,
+  blindPhaseSearch,
+  type PhaseRecoveryDiagnostics,
+  type PhaseRecoveryOptions,
+  type ViterbiViterbiStageOptions,
+  viterbiViterbi,
+} from './carrier/phase-recovery-stage.js';
+export { QUARTER_TURN, unwrapPhase, wrapAngle } from './carrier/phase-unwrap.js';
+export { cycleSlipsFromPhase, type PhaseJumpOptions, PhaseJumpSlipDetector } from './carrier/slips-phase-jump.js';
+export {
+  cycleSlipsAgainstReference,
+  ReferenceSlipDetector,
+  type ReferenceSlipOptions,
+  type ReferenceSlipSearchOptions,
+} from './carrier/slips-reference.js';
+export {
+  ViterbiViterbiKernel,
+  type ViterbiViterbiOptions,
+  type ViterbiViterbiSelection,
+  viterbiViterbiPhase,
+} from './carrier/viterbi-viterbi.js';
 export * from './dsp/fft.js';
 export * from './dsp/rrc.js';
 export * from './filter/fir.js';

@@ -1,13 +1,17 @@
 import {
   type AnyStage,
   type BlockOf,
+  blindPhaseSearch,
   type ChannelBlock,
   combineChannels,
   complexArray,
   type Domain,
+  differentialQuadrantDecoder,
   type FieldBlock,
   firFilter,
+  frequencyOffsetRecovery,
   Rng,
+  viterbiViterbi,
 } from '../../src/index.js';
 
 /**
@@ -60,5 +64,50 @@ export const stageCatalog: CatalogEntry[] = [
     name: 'fir (1 tap, symbols)',
     make: () => firFilter({ domain: 'symbols', taps: Float64Array.of(0.5, -0.25) as never }),
     input: () => randomField('symbols', 300, 3, 32e9, 1),
+  },
+  // Carrier recovery: estimation spans, look-ahead windows and slip detectors straddle block edges.
+  {
+    name: 'frequency-offset (fixed, periodogram)',
+    make: () => frequencyOffsetRecovery({ estimateSymbols: 200 }),
+    input: () => randomField('symbols', 700, 21, 32e9, 1),
+  },
+  {
+    name: 'frequency-offset (tracking, differential)',
+    make: () => frequencyOffsetRecovery({ method: 'differential', trackingSymbols: 128 }),
+    input: () => randomField('symbols', 700, 22, 32e9, 1),
+  },
+  {
+    name: 'viterbi-viterbi (16qam, phase-jump slips)',
+    make: () => viterbiViterbi({ modulation: '16qam', halfWindow: 5, slipWindow: 8 }),
+    input: () => randomField('symbols', 600, 23, 32e9, 1),
+  },
+  {
+    name: 'blind-phase-search (reference slips)',
+    make: () => {
+      const ref = randomField('symbols', 250, 24, 32e9, 1);
+      return blindPhaseSearch({
+        modulation: '16qam',
+        testPhases: 8,
+        halfWindow: 4,
+        reference: { x: ref.x, y: ref.y },
+        slipWindow: 8,
+      });
+    },
+    input: () => randomField('symbols', 600, 25, 32e9, 1),
+  },
+  {
+    name: 'blind-phase-search (coarse-fine)',
+    make: () => blindPhaseSearch({ modulation: 'qpsk', testPhases: 6, halfWindow: 3, variant: 'coarse-fine', fineHalfWindow: 5 }),
+    input: () => randomField('symbols', 600, 26, 32e9, 1),
+  },
+  {
+    name: 'blind-phase-search (stream shorter than the look-ahead)',
+    make: () => blindPhaseSearch({ modulation: '64qam', halfWindow: 20 }),
+    input: () => randomField('symbols', 15, 27, 32e9, 1),
+  },
+  {
+    name: 'differential-quadrant-decoder',
+    make: () => differentialQuadrantDecoder(),
+    input: () => randomField('symbols', 300, 28, 32e9, 1),
   },
 ];

@@ -1,0 +1,263 @@
+import type { Constellation } from '../modulation/constellation.js';
+import type { ComplexArray } from '../signal/complex.js';
+import { type PhaseKernel, runKernel } from './phase-kernel.js';
+import { QUARTER_TURN, unwrapPhase, wrapAngle } from './phase-unwrap.js';
+
+/** Options of the blind-phase-search estimator. */
+export interface BlindPhaseSearchOptions {
+  /** B: test phases spread over the π/2 ambiguity (integer ≥ 2, default 32). */
+  readonly testPhases?: number;
+  /** N: the window holds 2N + 1 symbols centred on the symbol estimated (integer ≥ 0, default 12). */
+  readonly halfWindow?: number;
+  /**
+   * 'single' (default): the search of Pfau et al. 'coarse-fine': a coarse
+   * search over `testPhases` phases, then a fine, continuous estimate from
+   * the coarse decisions (see {@link CoarseFinePhaseKernel}).
+   */
+  readonly variant?: 'single' | 'coarse-fine';
+  /** N₂: half window of the fine step of the coarse-fine variant (integer ≥ 0, default `halfWindow`). */
+  readonly fineHalfWindow?: number;
+}
+
+/**
+ * Blind phase search (Pfau, Hoffmann, Noé, "Hardware-efficient coherent
+ * digital receiver concept with feedforward carrier recovery for M-QAM
+ * constellations", JLT 27(8), 2009).
+ *
+ * B test phases φ_b = (b/B − ½)·π/2, b = 0 … B − 1, cover the π/2 ambiguity
+ * of square QAM. For every symbol and test phase, the squared distance to
+ * the nearest constellation point after rotation, summed over the window:
+ *
+ *   d_{i,b} = |rᵢ·e^(−jφ_b) − dec(rᵢ·e^(−jφ_b))|²,   D_{k,b} = Σ_{i=k−N}^{k+N} d_{i,b}
+ *   θ̂ₖ = φ_{b̂},  b̂ = argmin_b D_{k,b},   θₖ = θ̂ₖ + (π/2)·round((θₖ₋₁ − θ̂ₖ)/(π/2))
+ *
+ * The quantization of the test phases bounds the error by π/(4B) on a clean
+ * signal. The rotations e^(−jφ_b) are computed once; D_{k,b} is a running
+ * window sum (add the new distance, subtract the one leaving), so the cost
+ * per symbol is B rotations and decisions whatever N. Symbols outside the
+ * stream contribute nothing (a shorter window at both ends).
+ */
+export class BlindPhaseSearchKernel implements PhaseKernel {
+  readonly delay: number;
+  private readonly b: number;
+  private readonly len: number;
+  private readonly cosB: Float64Array;
+  private readonly sinB: Float64Array;
+  private readonly phases: Float64Array;
+  /** Distances of the window, (2N + 1) × B, one row per symbol slot. */
+  private readonly ring: Float64Array;
+  private readonly sums: Float64Array;
+  private readonly scale: number;
+  private readonly inv: number;
+  private readonly top: number;
+  private slot = 0;
+  private pushed = 0;
+  private last = Number.NaN;
+
+  /**
+   * @param c the constellation (square QAM at unit average power)
+   * @param options validated by the caller (the stage)
+   */
+  constructor(c: Constellation, options: BlindPhaseSearchOptions = {}) {
+    this.b = options.testPhases ?? 32;
+    const n = options.halfWindow ?? 12;
+    this.delay = n;
+    this.len = 2 * n + 1;
+    this.phases = new Float64Array(this.b);
+    this.cosB = new Float64Array(this.b);
+    this.sinB = new Float64Array(this.b);
+    for (let k = 0; k < this.b; k++) {
+      const phi = (k / this.b - 0.5) * QUARTER_TURN;
+      this.phases[k] = phi;
+      // e^(−jφ): the de-rotation applied by test phase k.
+      this.cosB[k] = Math.cos(phi);
+      this.sinB[k] = -Math.sin(phi);
+    }
+    this.ring = new Float64Array(this.len * this.b);
+    this.sums = new Float64Array(this.b);
+    this.scale = c.scale;
+    this.inv = 1 / c.scale;
+    this.top = c.levelsPerAxis - 1;
+  }
+
+  push(re: number, im: number, present: boolean): number {
+    const row = this.slot * this.b;
+    const ring = this.ring;
+    const sums = this.sums;
+    const cosB = this.cosB;
+    const sinB = this.sinB;
+    const scale = this.scale;
+    const inv = this.inv;
+    const top = this.top;
+    const b = this.b;
+    if (present) {
+      for (let k = 0; k < b; k++) {
+        const ur = re * cosB[k] - im * sinB[k];
+        const ui = re * sinB[k] + im * cosB[k];
+        // Per-axis slicing inline: level i = clamp(⌊(u/scale + L − 1)/2 + ½⌋, 0, L − 1).
+        // Inlined with truncation instead of Math.round: measured about 2× faster per symbol.
+        let tr = (ur * inv + top) * 0.5 + 0.5;
+        tr = tr < 0 ? 0 : tr > top ? top : tr | 0;
+        let ti = (ui * inv + top) * 0.5 + 0.5;
+        ti = ti < 0 ? 0 : ti > top ? top : ti | 0;
+        const er = ur - (2 * tr - top) * scale;
+        const ei = ui - (2 * ti - top) * scale;
+        const d = er * er + ei * ei;
+        // D_b ← D_b + d_new − d_oldest
+        sums[k] += d - ring[row + k];
+        ring[row + k] = d;
+      }
+    } else {
+      for (let k = 0; k < b; k++) {
+        sums[k] -= ring[row + k];
+        ring[row + k] = 0;
+      }
+    }
+    this.slot = this.slot + 1 === this.len ? 0 : this.slot + 1;
+    this.pushed++;
+    if (this.pushed <= this.delay) return Number.NaN;
+    let best = 0;
+    for (let k = 1; k < this.b; k++) if (sums[k] < sums[best]) best = k;
+    this.last = unwrapPhase(this.phases[best], this.last, QUARTER_TURN);
+    return this.last;
+  }
+
+  reset(): void {
+    this.ring.fill(0);
+    this.sums.fill(0);
+    this.slot = 0;
+    this.pushed = 0;
+    this.last = Number.NaN;
+  }
+}
+
+/**
+ * Coarse-then-fine blind phase search. A coarse search with few test phases
+ * (B₁, half window N₁) gives θ¹ᵢ and the decisions âᵢ = dec(rᵢ·e^(−jθ¹ᵢ));
+ * the fine step then minimizes the same window distance over a continuous
+ * phase with the decisions held:
+ *
+ *   Σᵢ |rᵢ·e^(−jφ) − âᵢ|² is least at φ = arg Σᵢ rᵢ·â*ᵢ,   i = k − N₂ … k + N₂
+ *   θₖ = θ¹ₖ + wrap(arg(Σᵢ rᵢ·â*ᵢ) − θ¹ₖ)
+ *
+ * which is the limit of a fine search with infinitely many test phases
+ * around the coarse one. Two-stage searches of this kind are common practice
+ * (one published form: Zhou, IEEE PTL 22(14), 2010, BPS followed by a
+ * maximum-likelihood step — *from memory*). The fine sum is a running
+ * window sum too, so the cost per symbol is B₁ rotations and decisions plus
+ * a constant, whatever N₁ and N₂; the look-ahead is N₁ + N₂.
+ */
+export class CoarseFinePhaseKernel implements PhaseKernel {
+  readonly delay: number;
+  private readonly coarse: BlindPhaseSearchKernel;
+  private readonly n1: number;
+  private readonly len2: number;
+  /** Input symbols waiting for their coarse phase (N₁ + 1 slots). */
+  private readonly inRe: Float64Array;
+  private readonly inIm: Float64Array;
+  private readonly inPresent: Uint8Array;
+  /** Coarse phases waiting for their fine window (N₂ + 1 slots). */
+  private readonly coarsePhase: Float64Array;
+  private readonly uRe: Float64Array;
+  private readonly uIm: Float64Array;
+  private sumRe = 0;
+  private sumIm = 0;
+  private pushed = 0;
+  private centres = 0;
+  private readonly scale: number;
+  private readonly inv: number;
+  private readonly top: number;
+  private readonly n2: number;
+
+  constructor(c: Constellation, options: BlindPhaseSearchOptions = {}) {
+    this.coarse = new BlindPhaseSearchKernel(c, options);
+    this.n1 = this.coarse.delay;
+    this.n2 = options.fineHalfWindow ?? this.n1;
+    this.len2 = 2 * this.n2 + 1;
+    this.delay = this.n1 + this.n2;
+    this.inRe = new Float64Array(this.n1 + 1);
+    this.inIm = new Float64Array(this.n1 + 1);
+    this.inPresent = new Uint8Array(this.n1 + 1);
+    this.coarsePhase = new Float64Array(this.n2 + 1);
+    this.uRe = new Float64Array(this.len2);
+    this.uIm = new Float64Array(this.len2);
+    this.scale = c.scale;
+    this.inv = 1 / c.scale;
+    this.top = c.levelsPerAxis - 1;
+  }
+
+  push(re: number, im: number, present: boolean): number {
+    const s = this.pushed % (this.n1 + 1);
+    this.inRe[s] = re;
+    this.inIm[s] = im;
+    this.inPresent[s] = present ? 1 : 0;
+    this.pushed++;
+    const theta1 = this.coarse.push(re, im, present);
+    if (Number.isNaN(theta1)) return Number.NaN;
+    // Coarse centre c = pushed − 1 − N₁: its symbol, decision and product u = r·â*.
+    const c = this.centres++;
+    const t = c % (this.n1 + 1);
+    let ur = 0;
+    let ui = 0;
+    if (this.inPresent[t] === 1) {
+      const rr = this.inRe[t];
+      const ri = this.inIm[t];
+      const cs = Math.cos(theta1);
+      const sn = Math.sin(theta1);
+      const ar = slice(rr * cs + ri * sn, this.scale, this.inv, this.top);
+      const ai = slice(ri * cs - rr * sn, this.scale, this.inv, this.top);
+      ur = rr * ar + ri * ai;
+      ui = ri * ar - rr * ai;
+    }
+    this.coarsePhase[c % (this.n2 + 1)] = theta1;
+    const slot = c % this.len2;
+    this.sumRe += ur - this.uRe[slot];
+    this.sumIm += ui - this.uIm[slot];
+    this.uRe[slot] = ur;
+    this.uIm[slot] = ui;
+    if (c < this.n2) return Number.NaN;
+    // Fine centre f = c − N₂; its coarse phase is N₂ entries back.
+    const coarseAt = this.coarsePhase[(c - this.n2) % (this.n2 + 1)];
+    if (this.sumRe === 0 && this.sumIm === 0) return coarseAt;
+    return coarseAt + wrapAngle(Math.atan2(this.sumIm, this.sumRe) - coarseAt);
+  }
+
+  reset(): void {
+    this.coarse.reset();
+    this.inRe.fill(0);
+    this.inIm.fill(0);
+    this.inPresent.fill(0);
+    this.coarsePhase.fill(0);
+    this.uRe.fill(0);
+    this.uIm.fill(0);
+    this.sumRe = 0;
+    this.sumIm = 0;
+    this.pushed = 0;
+    this.centres = 0;
+  }
+}
+
+/** Nearest level of one axis of square QAM: (2i − (L − 1))·scale, i = clamp(round((v/scale + L − 1)/2)). */
+function slice(v: number, scale: number, inv: number, top: number): number {
+  let i = Math.round((v * inv + top) * 0.5);
+  if (i < 0) i = 0;
+  else if (i > top) i = top;
+  return (2 * i - top) * scale;
+}
+
+/**
+ * The blind-phase-search phase track of a whole symbol array (one
+ * polarization), single or coarse-fine per `options.variant`.
+ * @param symbols N complex symbols at unit average power
+ * @returns N unwrapped phases, rad
+ * @example const theta = blindPhaseSearchPhase(constellation('16qam'), rx, { testPhases: 32, halfWindow: 8 });
+ */
+export function blindPhaseSearchPhase(
+  c: Constellation,
+  symbols: ComplexArray,
+  options: BlindPhaseSearchOptions = {},
+): Float64Array {
+  const kernel =
+    options.variant === 'coarse-fine' ? new CoarseFinePhaseKernel(c, options) : new BlindPhaseSearchKernel(c, options);
+  return runKernel(kernel, symbols);
+}
