@@ -6,9 +6,13 @@
  */
 
 export * from './dsp/fft.js';
+export * from './dsp/kaiser.js';
 export * from './dsp/rrc.js';
 export * from './filter/fir.js';
 export * from './frontend/combine-channels.js';
+export * from './frontend/deskew-channels.js';
+export * from './frontend/normalize-channels.js';
+export * from './frontend/orthogonalize-iq.js';
 export * from './modulation/constellation.js';
 export * from './physics/jones.js';
 export * from './physics/link.js';
@@ -17,6 +21,7 @@ export * from './pipeline/pipe.js';
 export * from './pipeline/stage.js';
 export * from './prbs/prbs.js';
 export * from './random/rng.js';
+export * from './resample/interpolation-kernel.js';
 export * from './signal/complex.js';
 export * from './signal/dual-pol.js';
 export * from './sim/ideal-receiver.js';

@@ -5,8 +5,11 @@ import {
   combineChannels,
   complexArray,
   type Domain,
+  deskewChannels,
   type FieldBlock,
   firFilter,
+  normalizeChannels,
+  orthogonalizeIq,
   Rng,
 } from '../../src/index.js';
 
@@ -60,5 +63,30 @@ export const stageCatalog: CatalogEntry[] = [
     name: 'fir (1 tap, symbols)',
     make: () => firFilter({ domain: 'symbols', taps: Float64Array.of(0.5, -0.25) as never }),
     input: () => randomField('symbols', 300, 3, 32e9, 1),
+  },
+  {
+    name: 'normalize-channels (calibration span across blocks)',
+    make: () => normalizeChannels({ calibrationSamples: 150 }),
+    input: () => randomChannels(700, 4),
+  },
+  {
+    name: 'normalize-channels (span longer than the stream, full scale)',
+    make: () => normalizeChannels({ calibrationSamples: 5000, fullScale: 1.5 }),
+    input: () => randomChannels(300, 5),
+  },
+  {
+    name: 'orthogonalize-iq (gsop)',
+    make: () => orthogonalizeIq({ calibrationSamples: 200 }),
+    input: () => randomChannels(600, 6),
+  },
+  {
+    name: 'orthogonalize-iq (lowdin)',
+    make: () => orthogonalizeIq({ method: 'lowdin', calibrationSamples: 90 }),
+    input: () => randomChannels(500, 7),
+  },
+  {
+    name: 'deskew-channels',
+    make: () => deskewChannels({ skewPs: { xi: 5, xq: -12.5, yq: 40 } }),
+    input: () => randomChannels(600, 8),
   },
 ];
