@@ -5,6 +5,7 @@
  * @packageDocumentation
  */
 
+export * from './dispersion/overlap-save.js';
 export * from './dsp/fft.js';
 export * from './dsp/kaiser.js';
 export * from './dsp/rrc.js';
@@ -22,6 +23,8 @@ export * from './pipeline/stage.js';
 export * from './prbs/prbs.js';
 export * from './random/rng.js';
 export * from './resample/interpolation-kernel.js';
+export * from './resample/matched-filter.js';
+export * from './resample/resampler.js';
 export * from './signal/complex.js';
 export * from './signal/dual-pol.js';
 export * from './sim/ideal-receiver.js';

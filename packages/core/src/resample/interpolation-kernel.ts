@@ -16,6 +16,8 @@ export interface LowpassSpec {
   readonly phases?: number;
 }
 
+const DESIGN_MARGIN_DB = 3;
+
 /**
  * A band-limited interpolation kernel: a Kaiser-windowed sinc tabulated at
  * `phases` fractional offsets per sample (Smith & Gossett, "A flexible
@@ -26,7 +28,8 @@ export interface LowpassSpec {
  *   c_j(μ) = h(j − H + 1 − μ),  h(u) = 2f_c·sinc(2f_c·u)·w(u/H),
  *
  * with f_c halfway between the band edges and w the Kaiser window sized by
- * Kaiser's formulas (see dsp/kaiser.ts). Each table row is scaled to unit
+ * Kaiser's formulas (see dsp/kaiser.ts) for A + 3 dB, since the formulas
+ * are approximate. Each table row is scaled to unit
  * sum (unit gain at DC). Between rows the coefficients are interpolated
  * linearly; with 1024 rows that error is below −110 dB for f_c ≤ 0.5.
  */
@@ -61,8 +64,10 @@ export class InterpolationKernel {
     this.spec = { passband, stopband, attenuationDb, phases };
     this.phases = phases;
     this.cutoff = (passband + stopband) / 2;
-    this.beta = kaiserBeta(attenuationDb);
-    const order = kaiserOrder(attenuationDb, stopband - passband);
+    // Kaiser's formulas are empirical fits, off by a dB or so: designing for
+    // 3 dB more makes the stated attenuation a guarantee.
+    this.beta = kaiserBeta(attenuationDb + DESIGN_MARGIN_DB);
+    const order = kaiserOrder(attenuationDb + DESIGN_MARGIN_DB, stopband - passband);
     this.halfTaps = Math.max(1, Math.ceil((order + 1) / 2));
     this.taps = 2 * this.halfTaps;
     this.table = new Float64Array((phases + 1) * this.taps);

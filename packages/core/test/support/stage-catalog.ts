@@ -11,6 +11,9 @@ import {
   normalizeChannels,
   orthogonalizeIq,
   Rng,
+  resampleAndMatchedFilter,
+  resampleToTwoSps,
+  rrcMatchedFilter,
 } from '../../src/index.js';
 
 /**
@@ -88,5 +91,25 @@ export const stageCatalog: CatalogEntry[] = [
     name: 'deskew-channels',
     make: () => deskewChannels({ skewPs: { xi: 5, xq: -12.5, yq: 40 } }),
     input: () => randomChannels(600, 8),
+  },
+  {
+    name: 'resample-to-two-sps (80 → 64 GSa/s)',
+    make: () => resampleToTwoSps(),
+    input: () => randomField('field', 800, 9, 80e9, 2.5),
+  },
+  {
+    name: 'resample-to-two-sps (50 → 56 GSa/s)',
+    make: () => resampleToTwoSps({ symbolRate: 28e9 }),
+    input: () => randomField('field', 500, 10, 50e9, 50 / 28),
+  },
+  {
+    name: 'rrc-matched-filter',
+    make: () => rrcMatchedFilter({ rollOff: 0.2, spanSymbols: 8 }),
+    input: () => randomField('twoSps', 900, 11),
+  },
+  {
+    name: 'resample + matched filter pipeline',
+    make: () => resampleAndMatchedFilter({ spanSymbols: 16 }),
+    input: () => randomField('field', 1000, 12, 80e9, 2.5),
   },
 ];
