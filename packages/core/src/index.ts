@@ -5,6 +5,9 @@
  * @packageDocumentation
  */
 
+export * from './dispersion/blind-dispersion.js';
+export * from './dispersion/compensate-dispersion.js';
+export * from './dispersion/dispersion-filter.js';
 export * from './dispersion/overlap-save.js';
 export * from './dsp/fft.js';
 export * from './dsp/kaiser.js';

@@ -3,6 +3,7 @@ import {
   type BlockOf,
   type ChannelBlock,
   combineChannels,
+  compensateDispersion,
   complexArray,
   type Domain,
   deskewChannels,
@@ -111,5 +112,15 @@ export const stageCatalog: CatalogEntry[] = [
     name: 'resample + matched filter pipeline',
     make: () => resampleAndMatchedFilter({ spanSymbols: 16 }),
     input: () => randomField('field', 1000, 12, 80e9, 2.5),
+  },
+  {
+    name: 'compensate-dispersion (given)',
+    make: () => compensateDispersion({ dispersionPsPerNm: 1000 }),
+    input: () => randomField('twoSps', 900, 13),
+  },
+  {
+    name: 'compensate-dispersion (blind, estimation span across blocks)',
+    make: () => compensateDispersion({ blind: { samples: 1024, minPsPerNm: 0, maxPsPerNm: 2000 } }),
+    input: () => randomField('twoSps', 1500, 14),
   },
 ];
