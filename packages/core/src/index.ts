@@ -33,4 +33,6 @@ export * from './signal/dual-pol.js';
 export * from './sim/ideal-receiver.js';
 export * from './sim/options.js';
 export * from './sim/simulate.js';
+export * from './timing/gardner-clock-recovery.js';
+export * from './timing/square-timing.js';
 export { LIBRARY_VERSION } from './version.js';

@@ -9,6 +9,7 @@ import {
   deskewChannels,
   type FieldBlock,
   firFilter,
+  gardnerClockRecovery,
   normalizeChannels,
   orthogonalizeIq,
   Rng,
@@ -122,5 +123,15 @@ export const stageCatalog: CatalogEntry[] = [
     name: 'compensate-dispersion (blind, estimation span across blocks)',
     make: () => compensateDispersion({ blind: { samples: 1024, minPsPerNm: 0, maxPsPerNm: 2000 } }),
     input: () => randomField('twoSps', 1500, 14),
+  },
+  {
+    name: 'gardner-clock-recovery (square-timing start across blocks)',
+    make: () => gardnerClockRecovery({ acquisitionSamples: 300, loopBandwidth: 5e-3 }),
+    input: () => randomField('twoSps', 1200, 15),
+  },
+  {
+    name: 'gardner-clock-recovery (given start)',
+    make: () => gardnerClockRecovery({ initialTiming: 0.7, rollOff: 0.5 }),
+    input: () => randomField('twoSps', 700, 16),
   },
 ];
