@@ -5,18 +5,34 @@
  * @packageDocumentation
  */
 
-export * from './dispersion/blind-dispersion.js';
-export * from './dispersion/compensate-dispersion.js';
-export * from './dispersion/dispersion-filter.js';
-export * from './dispersion/overlap-save.js';
+export { type BlindDispersionEstimate, type BlindDispersionOptions, estimateDispersion } from './dispersion/blind-dispersion.js';
+export {
+  type CompensateDispersionDiagnostics,
+  type CompensateDispersionOptions,
+  compensateDispersion,
+} from './dispersion/compensate-dispersion.js';
+export { cdTapCount, dispersionCompensationResponse } from './dispersion/dispersion-filter.js';
+export { OverlapSave, overlapSaveSize, responseOfCenteredTaps } from './dispersion/overlap-save.js';
 export * from './dsp/fft.js';
-export * from './dsp/kaiser.js';
+export { besselI0, kaiserBeta, kaiserOrder, kaiserWindow } from './dsp/kaiser.js';
 export * from './dsp/rrc.js';
 export * from './filter/fir.js';
 export * from './frontend/combine-channels.js';
-export * from './frontend/deskew-channels.js';
-export * from './frontend/normalize-channels.js';
-export * from './frontend/orthogonalize-iq.js';
+export { type DeskewChannelsDiagnostics, type DeskewChannelsOptions, deskewChannels } from './frontend/deskew-channels.js';
+export {
+  type ChannelValues,
+  type NormalizeChannelsDiagnostics,
+  type NormalizeChannelsOptions,
+  normalizeChannels,
+} from './frontend/normalize-channels.js';
+export {
+  type IqImbalanceEstimate,
+  type OrthogonalizationMethod,
+  type OrthogonalizeIqDiagnostics,
+  type OrthogonalizeIqOptions,
+  orthogonalizationMatrix,
+  orthogonalizeIq,
+} from './frontend/orthogonalize-iq.js';
 export * from './modulation/constellation.js';
 export * from './physics/jones.js';
 export * from './physics/link.js';
@@ -25,14 +41,25 @@ export * from './pipeline/pipe.js';
 export * from './pipeline/stage.js';
 export * from './prbs/prbs.js';
 export * from './random/rng.js';
-export * from './resample/interpolation-kernel.js';
-export * from './resample/matched-filter.js';
-export * from './resample/resampler.js';
+export { InterpolationKernel, type LowpassSpec } from './resample/interpolation-kernel.js';
+export {
+  type MatchedFilterDiagnostics,
+  type MatchedFilterOptions,
+  resampleAndMatchedFilter,
+  rrcMatchedFilter,
+  rrcTaps,
+} from './resample/matched-filter.js';
+export { type ResampleDiagnostics, type ResampleOptions, Resampler, resampleToTwoSps } from './resample/resampler.js';
 export * from './signal/complex.js';
 export * from './signal/dual-pol.js';
 export * from './sim/ideal-receiver.js';
 export * from './sim/options.js';
 export * from './sim/simulate.js';
-export * from './timing/gardner-clock-recovery.js';
-export * from './timing/square-timing.js';
+export {
+  type GardnerDiagnostics,
+  type GardnerOptions,
+  gardnerClockRecovery,
+  gardnerDetectorGain,
+} from './timing/gardner-clock-recovery.js';
+export { squareTimingEstimate } from './timing/square-timing.js';
 export { LIBRARY_VERSION } from './version.js';

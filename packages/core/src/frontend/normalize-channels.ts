@@ -23,21 +23,21 @@ export interface NormalizeChannelsOptions {
 }
 
 /** Per-channel values. */
-export type PerChannel<T> = Readonly<Record<ChannelName, T>>;
+export type ChannelValues<T> = Readonly<Record<ChannelName, T>>;
 
 export interface NormalizeChannelsDiagnostics {
   /** Mean of each channel on the calibration span, capture units (removed when `removeDc`). */
-  readonly mean: PerChannel<number>;
+  readonly mean: ChannelValues<number>;
   /** Standard deviation of each channel on the calibration span, capture units. */
-  readonly rms: PerChannel<number>;
+  readonly rms: ChannelValues<number>;
   /**
    * Fraction of samples at a rail, per channel, over all samples seen. Without
    * `fullScale`, an unclipped analog channel reports 2/N (its own minimum and
    * maximum); a clipping ADC piles many samples onto its extreme codes.
    */
-  readonly clippedFraction: PerChannel<number>;
+  readonly clippedFraction: ChannelValues<number>;
   /** Rails used per channel: [low, high] in capture units. */
-  readonly rails: PerChannel<readonly [number, number]>;
+  readonly rails: ChannelValues<readonly [number, number]>;
   /** Samples per channel seen so far. */
   readonly samples: number;
 }
@@ -132,7 +132,7 @@ class NormalizeChannels implements Stage<'channels', 'channels', NormalizeChanne
 
   diagnostics(): NormalizeChannelsDiagnostics {
     const n = this.samples;
-    const per = <T>(f: (c: number) => T): PerChannel<T> => ({ xi: f(0), xq: f(1), yi: f(2), yq: f(3) }) as PerChannel<T>;
+    const per = <T>(f: (c: number) => T): ChannelValues<T> => ({ xi: f(0), xq: f(1), yi: f(2), yq: f(3) }) as ChannelValues<T>;
     const fs = this.fullScale;
     return {
       mean: per((c) => this.mean[c]),
