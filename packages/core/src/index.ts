@@ -52,10 +52,34 @@ export {
   type ViterbiViterbiSelection,
   viterbiViterbiPhase,
 } from './carrier/viterbi-viterbi.js';
+export { type BlindDispersionEstimate, type BlindDispersionOptions, estimateDispersion } from './dispersion/blind-dispersion.js';
+export {
+  type CompensateDispersionDiagnostics,
+  type CompensateDispersionOptions,
+  compensateDispersion,
+} from './dispersion/compensate-dispersion.js';
+export { cdTapCount, dispersionCompensationResponse } from './dispersion/dispersion-filter.js';
+export { OverlapSave, overlapSaveSize, responseOfCenteredTaps } from './dispersion/overlap-save.js';
 export * from './dsp/fft.js';
+export { besselI0, kaiserBeta, kaiserOrder, kaiserWindow } from './dsp/kaiser.js';
 export * from './dsp/rrc.js';
 export * from './filter/fir.js';
 export * from './frontend/combine-channels.js';
+export { type DeskewChannelsDiagnostics, type DeskewChannelsOptions, deskewChannels } from './frontend/deskew-channels.js';
+export {
+  type ChannelValues,
+  type NormalizeChannelsDiagnostics,
+  type NormalizeChannelsOptions,
+  normalizeChannels,
+} from './frontend/normalize-channels.js';
+export {
+  type IqImbalanceEstimate,
+  type OrthogonalizationMethod,
+  type OrthogonalizeIqDiagnostics,
+  type OrthogonalizeIqOptions,
+  orthogonalizationMatrix,
+  orthogonalizeIq,
+} from './frontend/orthogonalize-iq.js';
 export * from './hash/sha256.js';
 export * from './modulation/constellation.js';
 export * from './physics/jones.js';
@@ -65,9 +89,25 @@ export * from './pipeline/pipe.js';
 export * from './pipeline/stage.js';
 export * from './prbs/prbs.js';
 export * from './random/rng.js';
+export { InterpolationKernel, type LowpassSpec } from './resample/interpolation-kernel.js';
+export {
+  type MatchedFilterDiagnostics,
+  type MatchedFilterOptions,
+  resampleAndMatchedFilter,
+  rrcMatchedFilter,
+  rrcTaps,
+} from './resample/matched-filter.js';
+export { type ResampleDiagnostics, type ResampleOptions, Resampler, resampleToTwoSps } from './resample/resampler.js';
 export * from './signal/complex.js';
 export * from './signal/dual-pol.js';
 export * from './sim/ideal-receiver.js';
 export * from './sim/options.js';
 export * from './sim/simulate.js';
+export {
+  type GardnerDiagnostics,
+  type GardnerOptions,
+  gardnerClockRecovery,
+  gardnerDetectorGain,
+} from './timing/gardner-clock-recovery.js';
+export { squareTimingEstimate } from './timing/square-timing.js';
 export { LIBRARY_VERSION } from './version.js';

@@ -4,13 +4,21 @@ import {
   blindPhaseSearch,
   type ChannelBlock,
   combineChannels,
+  compensateDispersion,
   complexArray,
   type Domain,
+  deskewChannels,
   differentialQuadrantDecoder,
   type FieldBlock,
   firFilter,
   frequencyOffsetRecovery,
+  gardnerClockRecovery,
+  normalizeChannels,
+  orthogonalizeIq,
   Rng,
+  resampleAndMatchedFilter,
+  resampleToTwoSps,
+  rrcMatchedFilter,
   viterbiViterbi,
 } from '../../src/index.js';
 
@@ -109,5 +117,70 @@ export const stageCatalog: CatalogEntry[] = [
     name: 'differential-quadrant-decoder',
     make: () => differentialQuadrantDecoder(),
     input: () => randomField('symbols', 300, 28, 32e9, 1),
+  },
+  {
+    name: 'normalize-channels (calibration span across blocks)',
+    make: () => normalizeChannels({ calibrationSamples: 150 }),
+    input: () => randomChannels(700, 4),
+  },
+  {
+    name: 'normalize-channels (span longer than the stream, full scale)',
+    make: () => normalizeChannels({ calibrationSamples: 5000, fullScale: 1.5 }),
+    input: () => randomChannels(300, 5),
+  },
+  {
+    name: 'orthogonalize-iq (gsop)',
+    make: () => orthogonalizeIq({ calibrationSamples: 200 }),
+    input: () => randomChannels(600, 6),
+  },
+  {
+    name: 'orthogonalize-iq (lowdin)',
+    make: () => orthogonalizeIq({ method: 'lowdin', calibrationSamples: 90 }),
+    input: () => randomChannels(500, 7),
+  },
+  {
+    name: 'deskew-channels',
+    make: () => deskewChannels({ skewPs: { xi: 5, xq: -12.5, yq: 40 } }),
+    input: () => randomChannels(600, 8),
+  },
+  {
+    name: 'resample-to-two-sps (80 → 64 GSa/s)',
+    make: () => resampleToTwoSps(),
+    input: () => randomField('field', 800, 9, 80e9, 2.5),
+  },
+  {
+    name: 'resample-to-two-sps (50 → 56 GSa/s)',
+    make: () => resampleToTwoSps({ symbolRate: 28e9 }),
+    input: () => randomField('field', 500, 10, 50e9, 50 / 28),
+  },
+  {
+    name: 'rrc-matched-filter',
+    make: () => rrcMatchedFilter({ rollOff: 0.2, spanSymbols: 8 }),
+    input: () => randomField('twoSps', 900, 11),
+  },
+  {
+    name: 'resample + matched filter pipeline',
+    make: () => resampleAndMatchedFilter({ spanSymbols: 16 }),
+    input: () => randomField('field', 1000, 12, 80e9, 2.5),
+  },
+  {
+    name: 'compensate-dispersion (given)',
+    make: () => compensateDispersion({ dispersionPsPerNm: 1000 }),
+    input: () => randomField('twoSps', 900, 13),
+  },
+  {
+    name: 'compensate-dispersion (blind, estimation span across blocks)',
+    make: () => compensateDispersion({ blind: { samples: 1024, minPsPerNm: 0, maxPsPerNm: 2000 } }),
+    input: () => randomField('twoSps', 1500, 14),
+  },
+  {
+    name: 'gardner-clock-recovery (square-timing start across blocks)',
+    make: () => gardnerClockRecovery({ acquisitionSamples: 300, loopBandwidth: 5e-3 }),
+    input: () => randomField('twoSps', 1200, 15),
+  },
+  {
+    name: 'gardner-clock-recovery (given start)',
+    make: () => gardnerClockRecovery({ initialTiming: 0.7, rollOff: 0.5 }),
+    input: () => randomField('twoSps', 700, 16),
   },
 ];

@@ -1,0 +1,236 @@
+import { type FieldBlock, fieldBlock } from '../pipeline/blocks.js';
+import { BlockError, OptionError, type Stage, type StageRecord } from '../pipeline/stage.js';
+import { type ComplexArray, concatComplex } from '../signal/complex.js';
+import { type BlindDispersionOptions, estimateDispersion } from './blind-dispersion.js';
+import { cdTapCount, dispersionCompensationResponse } from './dispersion-filter.js';
+import { OverlapSave, overlapSaveSize } from './overlap-save.js';
+
+export interface CompensateDispersionOptions {
+  /** Accumulated dispersion D·z to remove, ps/nm (exclusive with `fibre` and `blind`). */
+  readonly dispersionPsPerNm?: number;
+  /** The same as a fibre: D in ps/(nm·km) times its length in km. */
+  readonly fibre?: { readonly dispersionPsPerNmKm: number; readonly lengthKm: number };
+  /**
+   * Estimate the dispersion blindly on the first `blind.samples` samples
+   * (default 32,768 per polarization, held back until they have arrived)
+   * with {@link estimateDispersion}; `true` for the defaults.
+   */
+  readonly blind?: true | BlindDispersionOptions;
+  /** Carrier wavelength, nm (default 1550). */
+  readonly wavelengthNm?: number;
+  /** FFT size, a power of two larger than twice the overlap (default: the cheapest per sample). */
+  readonly fftSize?: number;
+}
+
+export interface CompensateDispersionDiagnostics {
+  /** Dispersion removed, ps/nm (NaN until known). */
+  readonly dispersionPsPerNm: number;
+  /** True when it was estimated blindly. */
+  readonly estimated: boolean;
+  /** Savory's tap count for it at the block's rate (0 until known). */
+  readonly taps: number;
+  readonly fftSize: number;
+  readonly overlap: number;
+  /** The blind estimate's cost at its minimum (NaN when given). */
+  readonly cost: number;
+}
+
+/**
+ * Chromatic-dispersion compensation at 2 samples per symbol by a
+ * frequency-domain overlap-save filter that inverts the fibre's all-pass
+ * response (Savory, Opt. Express 16(2), 2008):
+ *
+ *   Y[k] = X[k]·exp(−jφ(f_k)),  φ(f) = −π·λ²·(D·z)·f²/c
+ *
+ * Sign convention: {@link dispersionPhase} is the fibre's phase — the
+ * simulator multiplies by exp(jφ) — and this stage multiplies by exp(−jφ);
+ * a positive `dispersionPsPerNm` removes the dispersion of a positive-D fibre.
+ *
+ * Sizing: the overlap is Savory's tap count N = 2⌊|D|λ²z/(2cT²)⌋ + 1 (the
+ * impulse response's extent at T = 1/fs) rounded up to an even number, plus
+ * 64 samples for the response's ringing beyond it; the FFT size is the power
+ * of two that minimizes the work per sample (at least twice the overlap).
+ * The output has as many samples as the input, without delay.
+ *
+ * @throws OptionError unless exactly one of dispersionPsPerNm, fibre, blind is given, or for values out of range
+ * @example const cd = compensateDispersion({ fibre: { dispersionPsPerNmKm: 17, lengthKm: 80 } }); // 1,360 ps/nm
+ */
+export function compensateDispersion(
+  options: CompensateDispersionOptions,
+): Stage<'twoSps', 'twoSps', CompensateDispersionDiagnostics> {
+  return new CompensateDispersion(options);
+}
+
+class CompensateDispersion implements Stage<'twoSps', 'twoSps', CompensateDispersionDiagnostics> {
+  readonly name = 'compensate-dispersion';
+  readonly input = 'twoSps' as const;
+  readonly output = 'twoSps' as const;
+  private readonly given: number | null;
+  private readonly blind: BlindDispersionOptions | null;
+  private readonly blindSamples: number;
+  private readonly wavelengthNm: number;
+  private readonly fftSizeOption: number | undefined;
+  private readonly record: CompensateDispersionOptions;
+  private ex: OverlapSave | null = null;
+  private ey: OverlapSave | null = null;
+  private held: FieldBlock<'twoSps'>[] = [];
+  private heldCount = 0;
+  private value = Number.NaN;
+  private cost = Number.NaN;
+  private taps = 0;
+  private sampleRate = Number.NaN;
+
+  constructor(o: CompensateDispersionOptions) {
+    this.record = o;
+    const given = [o.dispersionPsPerNm !== undefined, o.fibre !== undefined, o.blind !== undefined].filter(Boolean).length;
+    if (given !== 1) {
+      throw new OptionError(this.name, 'dispersionPsPerNm', 'exactly one of dispersionPsPerNm, fibre or blind', o);
+    }
+    this.wavelengthNm = o.wavelengthNm ?? 1550;
+    if (!(this.wavelengthNm > 0 && Number.isFinite(this.wavelengthNm))) {
+      throw new OptionError(this.name, 'wavelengthNm', 'a positive wavelength in nm', o.wavelengthNm);
+    }
+    if (o.fftSize !== undefined && !(Number.isInteger(Math.log2(o.fftSize)) && o.fftSize >= 64)) {
+      throw new OptionError(this.name, 'fftSize', 'a power of two ≥ 64', o.fftSize);
+    }
+    this.fftSizeOption = o.fftSize;
+    this.given = null;
+    this.blind = null;
+    this.blindSamples = 0;
+    if (o.dispersionPsPerNm !== undefined) {
+      if (!Number.isFinite(o.dispersionPsPerNm)) {
+        throw new OptionError(this.name, 'dispersionPsPerNm', 'a finite dispersion in ps/nm', o.dispersionPsPerNm);
+      }
+      this.given = o.dispersionPsPerNm;
+    } else if (o.fibre !== undefined) {
+      const { dispersionPsPerNmKm: d, lengthKm: l } = o.fibre;
+      if (!Number.isFinite(d)) throw new OptionError(this.name, 'fibre.dispersionPsPerNmKm', 'a finite D in ps/(nm·km)', d);
+      if (!(l >= 0 && Number.isFinite(l))) throw new OptionError(this.name, 'fibre.lengthKm', 'a length ≥ 0 km', l);
+      this.given = d * l;
+    } else {
+      this.blind = o.blind === true ? {} : { ...o.blind };
+      const s = this.blind.samples ?? 32_768;
+      if (!(Number.isInteger(Math.log2(s)) && s >= 1024)) {
+        throw new OptionError(this.name, 'blind.samples', 'a power of two ≥ 1024', this.blind.samples);
+      }
+      const lo = this.blind.minPsPerNm ?? -5000;
+      const hi = this.blind.maxPsPerNm ?? 25_000;
+      if (!(hi > lo && Number.isFinite(lo) && Number.isFinite(hi))) {
+        throw new OptionError(this.name, 'blind.maxPsPerNm', `a range with minPsPerNm < maxPsPerNm (min ${lo})`, hi);
+      }
+      this.blindSamples = s;
+    }
+  }
+
+  process(block: FieldBlock<'twoSps'>): FieldBlock<'twoSps'> {
+    if (block.domain !== 'twoSps') throw new BlockError(`${this.name}: expected a 'twoSps' block, received '${block.domain}'`);
+    if (!Number.isNaN(this.sampleRate) && block.sampleRate !== this.sampleRate) {
+      throw new BlockError(
+        `${this.name}: the sample rate changed from ${this.sampleRate} to ${block.sampleRate} Sa/s mid-stream`,
+      );
+    }
+    this.sampleRate = block.sampleRate;
+    if (!this.ex) {
+      if (this.given !== null) this.build(this.given);
+      else {
+        this.held.push(block);
+        this.heldCount += block.x.length >> 1;
+        if (this.heldCount < this.blindSamples)
+          return fieldBlock(
+            'twoSps',
+            block.x.subarray(0, 0) as ComplexArray,
+            block.y.subarray(0, 0) as ComplexArray,
+            block.sampleRate,
+            2,
+          );
+        return this.releaseHeld();
+      }
+    }
+    return this.filter(block.x, block.y);
+  }
+
+  flush(): FieldBlock<'twoSps'> | null {
+    if (Number.isNaN(this.sampleRate)) return null;
+    const parts: FieldBlock<'twoSps'>[] = [];
+    if (!this.ex) {
+      if (this.heldCount < 1024) {
+        // Too short to estimate anything: pass the samples through untouched.
+        const x = concatComplex(this.held.map((b) => b.x));
+        const y = concatComplex(this.held.map((b) => b.y));
+        this.held = [];
+        this.heldCount = 0;
+        return fieldBlock('twoSps', x, y, this.sampleRate, 2);
+      }
+      parts.push(this.releaseHeld());
+    }
+    const x = this.ex!.flush();
+    const y = this.ey!.flush();
+    if (parts.length === 0) return fieldBlock('twoSps', x, y, this.sampleRate, 2);
+    return fieldBlock('twoSps', concatComplex([parts[0].x, x]), concatComplex([parts[0].y, y]), this.sampleRate, 2);
+  }
+
+  reset(): void {
+    this.ex = null;
+    this.ey = null;
+    this.held = [];
+    this.heldCount = 0;
+    this.value = Number.NaN;
+    this.cost = Number.NaN;
+    this.taps = 0;
+    this.sampleRate = Number.NaN;
+  }
+
+  diagnostics(): CompensateDispersionDiagnostics {
+    return {
+      dispersionPsPerNm: this.value,
+      estimated: this.blind !== null,
+      taps: this.taps,
+      fftSize: this.ex?.fftSize ?? 0,
+      overlap: this.ex?.overlap ?? 0,
+      cost: this.cost,
+    };
+  }
+
+  describe(): StageRecord {
+    const o = this.record;
+    return {
+      stage: this.name,
+      options: {
+        dispersionPsPerNm: o.dispersionPsPerNm ?? null,
+        fibre: o.fibre ? { ...o.fibre } : null,
+        blind: this.blind ? { ...this.blind } : null,
+        wavelengthNm: this.wavelengthNm,
+        fftSize: this.fftSizeOption ?? null,
+      },
+    };
+  }
+
+  private releaseHeld(): FieldBlock<'twoSps'> {
+    const x = concatComplex(this.held.map((b) => b.x));
+    const y = concatComplex(this.held.map((b) => b.y));
+    this.held = [];
+    this.heldCount = 0;
+    const e = estimateDispersion(x, y, this.sampleRate, { ...this.blind, samples: this.blindSamples });
+    this.cost = e.cost;
+    this.build(e.dispersionPsPerNm);
+    return this.filter(x, y);
+  }
+
+  private build(psPerNm: number): void {
+    const lambda = this.wavelengthNm * 1e-9;
+    this.value = psPerNm;
+    this.taps = cdTapCount(psPerNm, this.sampleRate, lambda);
+    const overlap = 2 * Math.ceil(this.taps / 2) + 64;
+    const n = this.fftSizeOption ?? overlapSaveSize(overlap);
+    if (n <= overlap) {
+      throw new OptionError(this.name, 'fftSize', `a power of two above the overlap of ${overlap} samples`, n);
+    }
+    const response = dispersionCompensationResponse(n, this.sampleRate, psPerNm, lambda);
+    this.ex = new OverlapSave(response, overlap);
+    this.ey = new OverlapSave(response, overlap);
+  }
+
+  private filter(x: ComplexArray, y: ComplexArray): FieldBlock<'twoSps'> {
+    return fieldBlock('twoSps', this.ex!.process(x), this.ey!.process(y), this.sampleRate, 2);
+  }
+}
