@@ -7,6 +7,8 @@
 
 export * from './dsp/fft.js';
 export * from './dsp/rrc.js';
+export * from './dsp/spectrum-summary.js';
+export * from './dsp/welch.js';
 export * from './filter/fir.js';
 export * from './frontend/combine-channels.js';
 export * from './modulation/constellation.js';
