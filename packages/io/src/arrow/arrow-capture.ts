@@ -178,7 +178,12 @@ export async function* readArrowCaptureAsync(
   path: string,
   options: ArrowCaptureOptions = {},
 ): AsyncGenerator<ChannelBlock, void, undefined> {
-  const handle = await open(path, 'r');
+  let handle: Awaited<ReturnType<typeof open>>;
+  try {
+    handle = await open(path, 'r');
+  } catch (e) {
+    throw new InputError({ file: path }, 'file', 'a readable file', (e as NodeJS.ErrnoException).code ?? String(e));
+  }
   try {
     let reader: AsyncIterable<RecordBatch>;
     try {
@@ -192,7 +197,17 @@ export async function* readArrowCaptureAsync(
       );
     }
     const blocks = new ArrowBlocks(path, options);
-    for await (const batch of reader) yield blocks.block(batch);
+    const it = reader[Symbol.asyncIterator]();
+    for (;;) {
+      let step: IteratorResult<RecordBatch>;
+      try {
+        step = await it.next();
+      } catch (e) {
+        throw new InputError({ file: path }, 'Arrow IPC', 'complete record batches', `a damaged file (${(e as Error).message})`);
+      }
+      if (step.done) break;
+      yield blocks.block(step.value);
+    }
     blocks.finish();
   } finally {
     await handle.close();

@@ -1,6 +1,7 @@
-import { closeSync, openSync, readSync } from 'node:fs';
+import { closeSync, readSync } from 'node:fs';
 import { type ComplexArray, type Constellation, complexArray, type DualPol } from '@intradyne/core';
 import { InputError } from '../errors/input-error.js';
+import { openForReading } from '../load/csv-capture.js';
 import { BufferFeeder, type HeaderCell, NumericCsvTable, type TableBlock } from '../load/csv-table.js';
 
 /** Reference column names, in slot order. */
@@ -64,7 +65,7 @@ export function loadReferenceCsv(path: string): DualPol {
   const blocks: TableBlock[] = [];
   const table = new NumericCsvTable(path, referenceResolver(path), (b) => blocks.push(b), { blockRows: 65536 });
   const feeder = new BufferFeeder(table, path);
-  const fd = openSync(path, 'r');
+  const fd = openForReading(path);
   try {
     while (feeder.feed(readSync(fd, feeder.buffer, feeder.offset, feeder.room, null))) {
       // reading

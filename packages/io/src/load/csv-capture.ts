@@ -26,6 +26,18 @@ export interface CsvCaptureOptions {
   readonly bufferBytes?: number;
 }
 
+/**
+ * Opens a file for reading.
+ * @throws InputError when it cannot be opened (missing, a folder, no permission)
+ */
+export function openForReading(path: string): number {
+  try {
+    return openSync(path, 'r');
+  } catch (e) {
+    throw new InputError({ file: path }, 'file', 'a readable file', (e as NodeJS.ErrnoException).code ?? String(e));
+  }
+}
+
 /** One file per channel: the path of each. */
 export type ChannelFiles = Readonly<Record<ChannelName, string>>;
 
@@ -205,7 +217,7 @@ function* captureBlocks(file: string, read: ReadFn, options: CsvCaptureOptions):
  * @example for (const block of readCsvCapture('run-07.csv', { sampleRate: 80e9 })) total += block.xi.length;
  */
 export function* readCsvCapture(path: string, options: CsvCaptureOptions = {}): Generator<ChannelBlock, void, undefined> {
-  const fd = openSync(path, 'r');
+  const fd = openForReading(path);
   try {
     yield* captureBlocks(path, (b, o, l) => readSync(fd, b, o, l, null), options);
   } finally {
@@ -243,7 +255,12 @@ export async function* readCsvCaptureAsync(
   path: string,
   options: CsvCaptureOptions = {},
 ): AsyncGenerator<ChannelBlock, void, undefined> {
-  const handle = await open(path, 'r');
+  let handle: Awaited<ReturnType<typeof open>>;
+  try {
+    handle = await open(path, 'r');
+  } catch (e) {
+    throw new InputError({ file: path }, 'file', 'a readable file', (e as NodeJS.ErrnoException).code ?? String(e));
+  }
   try {
     const state = new CaptureCsvState(path, options, CHANNEL_NAMES);
     while (!state.ended) {
@@ -270,7 +287,7 @@ export function* readCsvCaptureFiles(
 ): Generator<ChannelBlock, void, undefined> {
   const fds: number[] = [];
   try {
-    for (const c of CHANNEL_NAMES) fds.push(openSync(files[c], 'r'));
+    for (const c of CHANNEL_NAMES) fds.push(openForReading(files[c]));
     const sources = CHANNEL_NAMES.map((c, i) =>
       syncBlocks(new CaptureCsvState(files[c], options, [c]), (b, o, l) => readSync(fds[i], b, o, l, null)),
     );

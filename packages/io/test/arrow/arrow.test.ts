@@ -72,6 +72,14 @@ describe('Arrow IPC', () => {
     const viaAsync = [];
     for await (const b of readArrowCaptureAsync(path, { sampleRate: 64e9, columns: { xi: 'XI' } })) viaAsync.push(b);
     expect(Array.from(concatBlocks(viaAsync).yq)).toEqual(Array.from(whole.yq));
+    const damaged = join(dir, 'damaged.arrows');
+    const full = batches({ xi, xq, yi, yq }, [128, 128], 'stream');
+    writeFileSync(damaged, full.subarray(0, full.length - 500));
+    await expect(async () => {
+      for await (const _ of readArrowCaptureAsync(damaged, { sampleRate: 64e9 })) {
+        // reading
+      }
+    }).rejects.toThrow(InputError);
     const stream = join(dir, 'multi.arrows');
     writeFileSync(stream, batches({ xi, xq, yi, yq }, [10, 246], 'stream'));
     const fromStream = [];
@@ -127,6 +135,13 @@ describe('Arrow IPC', () => {
       tableToIPC(new Table({ xi: makeVector(f()), xq: makeVector(f()), yi: makeVector(f()), yq: makeVector(f()) })),
     );
     expect(arrowError(() => loadArrowCapture(path)).message).toMatch(/sample rate: expected a stated sample rate/);
+    // A truncated file (the first 60 % of its bytes), read both ways.
+    const whole = tableToIPC(new Table([...t1.batches, ...t1.batches]), 'stream');
+    writeFileSync(path, whole.subarray(0, Math.floor(whole.length * 0.6)));
+    expect(caught(() => loadArrowCapture(path, { sampleRate: 1e9 }))).toBeInstanceOf(InputError);
+    expect(caught(() => loadArrowCapture(join(dir, 'missing.arrow'), { sampleRate: 1e9 })).message).toMatch(
+      /missing.arrow: file: expected a readable file, received ENOENT/,
+    );
     writeFileSync(path, 'xi,xq,yi,yq\n1,2,3,4\n');
     expect(arrowError(() => loadArrowCapture(path, { sampleRate: 1e9 })).message).toMatch(/expected an Arrow IPC file or stream/);
   });

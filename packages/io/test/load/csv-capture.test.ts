@@ -156,6 +156,11 @@ describe('CSV capture loader', () => {
         expect(e.message).toMatch(message);
       });
     }
+    it('a missing file', () => {
+      expect(inputError(() => loadCsvCapture('no/such/capture.csv', { sampleRate: 1 })).message).toBe(
+        'no/such/capture.csv: file: expected a readable file, received ENOENT',
+      );
+    });
     it('no time column and no stated rate', () => {
       expect(inputError(() => load('xi,xq,yi,yq\n1,2,3,4\n', { sampleRate: undefined })).message).toMatch(
         /mem.csv:1:1: sample rate: expected a time column 't'/,
