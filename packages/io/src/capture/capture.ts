@@ -5,7 +5,7 @@ import { loadReferenceArrow, readArrowCapture, readArrowCaptureAsync, readArrowM
 import { InputError } from '../errors/input-error.js';
 import { type CsvCaptureOptions, readCsvCapture, readCsvCaptureAsync } from '../load/csv-capture.js';
 import { type CaptureDescriptor, DESCRIPTOR_FIELDS, type FieldValue, parseDescriptor, validateDescriptor } from './descriptor.js';
-import { parseJsonWithPositions } from './json-positions.js';
+import { parseJsonWithPositions, plainJson } from './json-positions.js';
 import { checkReferenceConstellation, loadReferenceCsv } from './reference.js';
 
 /** Data file formats, by extension: `.csv`; `.arrow` (IPC file) and `.arrows` (IPC stream). */
@@ -124,7 +124,7 @@ export function openCapture(path: string, overrides: Readonly<Record<string, unk
     // A root that is not an object: parseDescriptor reports it.
     if (root.kind !== 'object') parseDescriptor(text, sidecar);
     if (root.kind === 'object')
-      for (const [k, v] of root.members) fields.set(k, { value: plainValue(v), line: v.line, column: v.column });
+      for (const [k, v] of root.members) fields.set(k, { value: plainJson(v), line: v.line, column: v.column });
   } else if (fields.size === 0) {
     throw new InputError(
       { file: dataPath },
@@ -189,12 +189,6 @@ export function openCapture(path: string, overrides: Readonly<Record<string, unk
     blocksAsync: (o) =>
       format === 'csv' ? readCsvCaptureAsync(dataPath, csvOptions(o)) : readArrowCaptureAsync(dataPath, arrowOptions),
   };
-}
-
-function plainValue(v: ReturnType<typeof parseJsonWithPositions>): unknown {
-  if (v.kind === 'object') return Object.fromEntries([...v.members].map(([k, m]) => [k, plainValue(m)]));
-  if (v.kind === 'array') return v.items.map(plainValue);
-  return v.value;
 }
 
 /**

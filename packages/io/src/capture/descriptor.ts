@@ -2,7 +2,7 @@ import { readFileSync } from 'node:fs';
 import { MODULATIONS, type ModulationName } from '@intradyne/core';
 import { InputError, quoteText } from '../errors/input-error.js';
 import type { CaptureColumn } from '../load/csv-capture.js';
-import { type PositionedJson, parseJsonWithPositions } from './json-positions.js';
+import { parseJsonWithPositions, plainJson } from './json-positions.js';
 
 /**
  * A capture's descriptor: the sidecar `<capture-name>.json` beside the data
@@ -75,7 +75,7 @@ export function parseDescriptor(text: string, file: string): CaptureDescriptor {
     throw new InputError({ file, line: root.line, column: root.column }, 'descriptor', 'a JSON object', `a JSON ${root.kind}`);
   }
   const fields = new Map<string, FieldValue>();
-  for (const [k, v] of root.members) fields.set(k, { value: toPlain(v), line: v.line, column: v.column });
+  for (const [k, v] of root.members) fields.set(k, { value: plainJson(v), line: v.line, column: v.column });
   return validateDescriptor(fields, file, { line: root.line, column: root.column });
 }
 
@@ -91,12 +91,6 @@ export function readDescriptor(path: string): CaptureDescriptor {
     throw new InputError({ file: path }, 'descriptor', 'a readable file', (e as NodeJS.ErrnoException).code ?? String(e));
   }
   return parseDescriptor(text, path);
-}
-
-function toPlain(v: PositionedJson): unknown {
-  if (v.kind === 'object') return Object.fromEntries([...v.members].map(([k, m]) => [k, toPlain(m)]));
-  if (v.kind === 'array') return v.items.map(toPlain);
-  return v.value;
 }
 
 function describe(v: unknown): string {

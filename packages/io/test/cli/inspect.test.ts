@@ -2,6 +2,7 @@ import { copyFileSync, readdirSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { simulate } from '@intradyne/core';
 import { describe, expect, it } from 'vitest';
+import { writeCaptureArrow, writeSymbolsArrow } from '../../src/arrow/arrow-write.js';
 import { main } from '../../src/index.js';
 import { writeCaptureCsv, writeJsonAtomic } from '../../src/write/csv.js';
 import { FIXTURES, tempDir } from '../support/temp.js';
@@ -77,6 +78,20 @@ describe('intradyne inspect', () => {
     // 8192 symbols: the spread is near ±1 % (see the core summary tests); 2 %.
     expect(Math.abs(r.symbolRate.estimateBd / 32e9 - 1)).toBeLessThan(0.02);
     expect(r.descriptor).toBeNull();
+  });
+
+  it('inspects an Arrow capture described by its schema metadata', () => {
+    const dir = tempDir();
+    const sim = simulate({ seed: 22, modulation: 'qpsk', symbols: 4096, symbolRate: 32e9, channel: { esN0Db: 14 } });
+    writeSymbolsArrow(join(dir, 'tx.arrow'), sim.reference);
+    writeCaptureArrow(join(dir, 'run.arrow'), sim.channels, {
+      metadata: { symbolRate: '32e9', modulation: 'qpsk', reference: 'tx.arrow' },
+    });
+    const r = JSON.parse(run(['inspect', join(dir, 'run.arrow'), '--json']).stdout);
+    expect(r.format).toBe('arrow');
+    expect(r.samples).toBe(8192);
+    // 4096 symbols: the same ±2 % spread as the fixtures; 4 %.
+    expect(Math.abs(r.symbolRate.estimateBd / 32e9 - 1)).toBeLessThan(0.04);
   });
 
   it('exits 2 with a located message on bad input and bad usage', () => {
