@@ -63,6 +63,8 @@ export { OverlapSave, overlapSaveSize, responseOfCenteredTaps } from './dispersi
 export * from './dsp/fft.js';
 export { besselI0, kaiserBeta, kaiserOrder, kaiserWindow } from './dsp/kaiser.js';
 export * from './dsp/rrc.js';
+export * from './dsp/spectrum-summary.js';
+export * from './dsp/welch.js';
 export * from './filter/fir.js';
 export * from './frontend/combine-channels.js';
 export { type DeskewChannelsDiagnostics, type DeskewChannelsOptions, deskewChannels } from './frontend/deskew-channels.js';

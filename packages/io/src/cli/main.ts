@@ -1,14 +1,21 @@
 #!/usr/bin/env node
 import { LIBRARY_VERSION, OptionError } from '@intradyne/core';
+import { InputError } from '../errors/input-error.js';
 import { OutputExistsError } from '../write/atomic.js';
 import { DEMO_HELP, demoCommand } from './demo.js';
 import { EXIT, UsageError } from './errors.js';
+import { INSPECT_HELP, inspectCommand } from './inspect.js';
 import { SIMULATE_HELP, simulateCommand } from './simulate.js';
 
 type Command = (argv: readonly string[], out: (s: string) => void, err: (s: string) => void) => number;
 
 const COMMANDS: Record<string, { run: Command; summary: string; help: string }> = {
   simulate: { run: simulateCommand, summary: 'write simulated captures with descriptors and references', help: SIMULATE_HELP },
+  inspect: {
+    run: inspectCommand,
+    summary: 'channel statistics, clipping, a power-spectrum summary and the symbol rate of a capture',
+    help: INSPECT_HELP,
+  },
   demo: { run: demoCommand, summary: 'simulate the built-in demo scenario and print what was made', help: DEMO_HELP },
 };
 
@@ -48,7 +55,7 @@ export function main(
   try {
     return command.run(rest, out, err);
   } catch (e) {
-    if (e instanceof UsageError || e instanceof OptionError || e instanceof OutputExistsError) {
+    if (e instanceof UsageError || e instanceof InputError || e instanceof OptionError || e instanceof OutputExistsError) {
       err(`${e.message}\n`);
       return EXIT.badInput;
     }

@@ -1,0 +1,260 @@
+import { readFileSync } from 'node:fs';
+import { open } from 'node:fs/promises';
+import { CHANNEL_NAMES, type ChannelBlock, type ChannelName, concatBlocks, type DualPol } from '@intradyne/core';
+import { type RecordBatch, RecordBatchReader, type Schema, Type, type Vector } from 'apache-arrow';
+import { checkReferenceLength, dualPolFromColumns, REFERENCE_COLUMNS } from '../capture/reference.js';
+import { InputError } from '../errors/input-error.js';
+
+export interface ArrowCaptureOptions {
+  /** Column names (case-insensitive) of the channels, e.g. `{ xi: 'CH1' }`; by default the channel names. */
+  readonly columns?: Partial<Record<ChannelName, string>>;
+  /** Sample rate, Sa/s; by default the schema metadata's `sampleRate`. */
+  readonly sampleRate?: number;
+  /** Nominal samples per symbol carried by the blocks (default NaN). */
+  readonly samplesPerSymbol?: number;
+}
+
+/** Finds named float32/float64 columns in a schema. @throws InputError for a missing, duplicate or non-float column */
+function columnIndexes(schema: Schema, names: readonly string[], file: string): number[] {
+  return names.map((name) => {
+    const hits: number[] = [];
+    schema.fields.forEach((f, i) => {
+      if (f.name.toLowerCase() === name.toLowerCase()) hits.push(i);
+    });
+    if (hits.length !== 1) {
+      throw new InputError(
+        { file },
+        'schema',
+        `one column named '${name}' (case-insensitive)`,
+        hits.length === 0
+          ? `the columns ${schema.fields.map((f) => JSON.stringify(f.name)).join(', ')}`
+          : `${hits.length} of them (fields ${hits.map((h) => h + 1).join(', ')})`,
+      );
+    }
+    const f = schema.fields[hits[0]];
+    const t = f.type as { typeId: Type; precision?: number };
+    // Precision 1 is single, 2 is double (Arrow's Precision enum).
+    if (t.typeId !== Type.Float || (t.precision !== 1 && t.precision !== 2)) {
+      throw new InputError({ file }, `column '${f.name}'`, 'a float32 or float64 column', `type ${String(f.type)}`);
+    }
+    return hits[0];
+  });
+}
+
+/**
+ * Copies one column of a record batch to a Float64Array, refusing nulls and
+ * non-finite values. (`toArray()` on a vector of one batch is a view of its
+ * single buffer; it would ignore the validity bitmap, hence the null check.)
+ * @param firstRow 0-based index of the batch's first row in the file
+ */
+function columnValues(v: Vector, name: string, firstRow: number, file: string): Float64Array {
+  if (v.nullCount > 0) {
+    let i = 0;
+    while (i < v.length && v.isValid(i)) i++;
+    throw new InputError({ file }, `column '${name}', row ${firstRow + i + 1}`, 'a number', 'null');
+  }
+  const out = new Float64Array(v.toArray() as Float32Array | Float64Array);
+  for (let i = 0; i < out.length; i++) {
+    if (!Number.isFinite(out[i])) {
+      throw new InputError({ file }, `column '${name}', row ${firstRow + i + 1}`, 'a finite number', String(out[i]));
+    }
+  }
+  return out;
+}
+
+function metadataRate(schema: Schema, file: string): number | undefined {
+  const text = schema.metadata.get('sampleRate');
+  if (text === undefined) return undefined;
+  const v = Number(text);
+  if (!(Number.isFinite(v) && v > 0)) {
+    throw new InputError({ file }, "schema metadata 'sampleRate'", 'a positive number of Sa/s', JSON.stringify(text));
+  }
+  return v;
+}
+
+class ArrowBlocks {
+  private indexes: number[] | null = null;
+  private rate = Number.NaN;
+  private row = 0;
+
+  constructor(
+    private readonly file: string,
+    private readonly options: ArrowCaptureOptions,
+  ) {}
+
+  block(batch: RecordBatch): ChannelBlock {
+    if (this.indexes === null) {
+      const schema = batch.schema;
+      this.indexes = columnIndexes(
+        schema,
+        CHANNEL_NAMES.map((c) => this.options.columns?.[c] ?? c),
+        this.file,
+      );
+      const rate = this.options.sampleRate ?? metadataRate(schema, this.file);
+      if (rate === undefined) {
+        throw new InputError(
+          { file: this.file },
+          'sample rate',
+          "a stated sample rate (the descriptor's sampleRate or the schema metadata's)",
+          'neither',
+        );
+      }
+      this.rate = rate;
+    }
+    const [xi, xq, yi, yq] = this.indexes.map((i) =>
+      columnValues(batch.getChildAt(i) as Vector, batch.schema.fields[i].name, this.row, this.file),
+    );
+    this.row += batch.numRows;
+    return {
+      domain: 'channels',
+      xi,
+      xq,
+      yi,
+      yq,
+      sampleRate: this.rate,
+      samplesPerSymbol: this.options.samplesPerSymbol ?? Number.NaN,
+    };
+  }
+
+  finish(): void {
+    if (this.row === 0) throw new InputError({ file: this.file }, 'data', 'at least one row', 'none');
+  }
+}
+
+function openSyncReader(path: string): RecordBatchReader {
+  let bytes: Uint8Array;
+  try {
+    bytes = readFileSync(path);
+  } catch (e) {
+    throw new InputError({ file: path }, 'file', 'a readable file', (e as NodeJS.ErrnoException).code ?? String(e));
+  }
+  try {
+    const reader = RecordBatchReader.from(bytes);
+    reader.open();
+    return reader;
+  } catch (e) {
+    throw new InputError(
+      { file: path },
+      'Arrow IPC',
+      'an Arrow IPC file or stream',
+      `unreadable bytes (${(e as Error).message})`,
+    );
+  }
+}
+
+function* batchesOf(reader: RecordBatchReader, file: string): Generator<RecordBatch> {
+  const it = reader[Symbol.iterator]();
+  for (;;) {
+    let step: IteratorResult<RecordBatch>;
+    try {
+      step = it.next();
+    } catch (e) {
+      throw new InputError({ file }, 'Arrow IPC', 'complete record batches', `a damaged file (${(e as Error).message})`);
+    }
+    if (step.done) return;
+    yield step.value;
+  }
+}
+
+/**
+ * Reads an Arrow IPC capture (file or stream format, detected from the
+ * bytes) batch by batch: float32 or float64 columns `xi, xq, yi, yq`
+ * (case-insensitive, or mapped), one `channels` block per record batch.
+ * This synchronous form reads the file's bytes into memory first; for large
+ * files use {@link readArrowCaptureAsync}, which holds one batch at a time.
+ * @throws InputError for a missing, duplicate or non-float column, a null
+ *   (naming the column and the 1-based row), NaN or Infinity, no rows, no
+ *   sample rate, or bytes that are not Arrow IPC
+ */
+export function* readArrowCapture(path: string, options: ArrowCaptureOptions = {}): Generator<ChannelBlock, void, undefined> {
+  const reader = openSyncReader(path);
+  const blocks = new ArrowBlocks(path, options);
+  for (const batch of batchesOf(reader, path)) yield blocks.block(batch);
+  blocks.finish();
+}
+
+/** The asynchronous form of {@link readArrowCapture}: reads with a file handle, one batch at a time. */
+export async function* readArrowCaptureAsync(
+  path: string,
+  options: ArrowCaptureOptions = {},
+): AsyncGenerator<ChannelBlock, void, undefined> {
+  let handle: Awaited<ReturnType<typeof open>>;
+  try {
+    handle = await open(path, 'r');
+  } catch (e) {
+    throw new InputError({ file: path }, 'file', 'a readable file', (e as NodeJS.ErrnoException).code ?? String(e));
+  }
+  try {
+    let reader: AsyncIterable<RecordBatch>;
+    try {
+      reader = (await RecordBatchReader.from(handle as never)) as unknown as AsyncIterable<RecordBatch>;
+    } catch (e) {
+      throw new InputError(
+        { file: path },
+        'Arrow IPC',
+        'an Arrow IPC file or stream',
+        `unreadable bytes (${(e as Error).message})`,
+      );
+    }
+    const blocks = new ArrowBlocks(path, options);
+    const it = reader[Symbol.asyncIterator]();
+    for (;;) {
+      let step: IteratorResult<RecordBatch>;
+      try {
+        step = await it.next();
+      } catch (e) {
+        throw new InputError({ file: path }, 'Arrow IPC', 'complete record batches', `a damaged file (${(e as Error).message})`);
+      }
+      if (step.done) break;
+      yield blocks.block(step.value);
+    }
+    blocks.finish();
+  } finally {
+    await handle.close();
+  }
+}
+
+/** Loads a whole Arrow capture into one block. @throws InputError as {@link readArrowCapture} */
+export function loadArrowCapture(path: string, options: ArrowCaptureOptions = {}): ChannelBlock {
+  return concatBlocks([...readArrowCapture(path, options)]);
+}
+
+/**
+ * The schema metadata of an Arrow IPC file or stream (key → value text). The
+ * descriptor fields may be stored there, each value as JSON text or as a
+ * plain string (`"sampleRate": "8e10"`, `"modulation": "16qam"`).
+ * @throws InputError when the bytes are not Arrow IPC
+ */
+export function readArrowMetadata(path: string): ReadonlyMap<string, string> {
+  return openSyncReader(path).schema.metadata;
+}
+
+/**
+ * Loads reference symbols from Arrow IPC: float columns `x_re, x_im, y_re, y_im`.
+ * @throws InputError as {@link readArrowCapture}, or for fewer than 32 symbols
+ */
+export function loadReferenceArrow(path: string): DualPol {
+  const reader = openSyncReader(path);
+  const parts: Float64Array[][] = [[], [], [], []];
+  let indexes: number[] | null = null;
+  let row = 0;
+  for (const batch of batchesOf(reader, path)) {
+    indexes ??= columnIndexes(batch.schema, REFERENCE_COLUMNS, path);
+    for (const [s, i] of indexes.entries())
+      parts[s].push(columnValues(batch.getChildAt(i) as Vector, REFERENCE_COLUMNS[s], row, path));
+    row += batch.numRows;
+  }
+  if (indexes === null) columnIndexes(reader.schema, REFERENCE_COLUMNS, path);
+  const joined = parts.map((p) => {
+    const out = new Float64Array(row);
+    let at = 0;
+    for (const a of p) {
+      out.set(a, at);
+      at += a.length;
+    }
+    return out;
+  });
+  const symbols = dualPolFromColumns(joined[0], joined[1], joined[2], joined[3]);
+  checkReferenceLength(symbols, path);
+  return symbols;
+}

@@ -1,0 +1,97 @@
+import type { DualPol, ScopeChannels } from '@intradyne/core';
+import { Float64, makeTable, Table, tableToIPC, Utf8, type Vector, vectorFromArray } from 'apache-arrow';
+import { type AtomicWriteOptions, writeFileAtomic } from '../write/atomic.js';
+
+export interface ArrowWriteOptions extends AtomicWriteOptions {
+  /** IPC format: 'file' (default; random access, `.arrow`) or 'stream' (`.arrows`). */
+  readonly format?: 'file' | 'stream';
+  /** Schema metadata, key → text. */
+  readonly metadata?: Readonly<Record<string, string>>;
+}
+
+function write(path: string, table: Table, options: ArrowWriteOptions): void {
+  if (options.metadata) for (const [k, v] of Object.entries(options.metadata)) table.schema.metadata.set(k, v);
+  const bytes = tableToIPC(table, options.format ?? 'file');
+  writeFileAtomic(path, (append) => append(bytes), options);
+}
+
+function float64Table(columns: Record<string, Float64Array>): Table {
+  return makeTable(columns);
+}
+
+/**
+ * Writes a four-channel capture as Arrow IPC: float64 columns `xi, xq, yi, yq`,
+ * the sample rate in the schema metadata (`sampleRate`, Sa/s) with any other
+ * metadata given. Atomic (temporary file, then rename).
+ * @throws OutputExistsError when the file exists and `overwrite` is not set
+ */
+export function writeCaptureArrow(path: string, channels: ScopeChannels, options: ArrowWriteOptions = {}): void {
+  const { xi, xq, yi, yq, sampleRate } = channels;
+  write(path, float64Table({ xi, xq, yi, yq }), {
+    ...options,
+    metadata: { sampleRate: String(sampleRate), ...options.metadata },
+  });
+}
+
+/** Splits interleaved complex symbols into real and imaginary columns. */
+function parts(z: Float64Array): [Float64Array, Float64Array] {
+  const n = z.length >> 1;
+  const re = new Float64Array(n);
+  const im = new Float64Array(n);
+  for (let k = 0; k < n; k++) {
+    re[k] = z[2 * k];
+    im[k] = z[2 * k + 1];
+  }
+  return [re, im];
+}
+
+/**
+ * Writes dual-polarization symbols (recovered symbols, or a reference) as
+ * Arrow IPC with float64 columns `x_re, x_im, y_re, y_im`, one row per
+ * symbol. Atomic.
+ * @throws RangeError when x and y differ in length; OutputExistsError as {@link writeCaptureArrow}
+ */
+export function writeSymbolsArrow(path: string, symbols: DualPol, options: ArrowWriteOptions = {}): void {
+  if (symbols.x.length !== symbols.y.length) {
+    throw new RangeError(`writeSymbolsArrow: x has ${symbols.x.length >> 1} symbols, y has ${symbols.y.length >> 1}`);
+  }
+  const [x_re, x_im] = parts(symbols.x);
+  const [y_re, y_im] = parts(symbols.y);
+  write(path, float64Table({ x_re, x_im, y_re, y_im }), options);
+}
+
+/** A row of a results table: named numbers, strings or missing values. */
+export type ResultRow = Readonly<Record<string, number | string | boolean | null | undefined>>;
+
+/**
+ * Writes a results table (one row per capture, say) as Arrow IPC, readable
+ * by Python, R and SQL tools. Columns appear in the order their names are
+ * first met; a column whose values are all numbers (or missing) is float64,
+ * booleans become 0/1, strings make a UTF-8 column; a missing value is null.
+ * Atomic.
+ * @throws RangeError when a column mixes numbers and strings, or there is no row
+ */
+export function writeResultsArrow(path: string, rows: readonly ResultRow[], options: ArrowWriteOptions = {}): void {
+  if (rows.length === 0) throw new RangeError('writeResultsArrow: expected at least one row');
+  const names: string[] = [];
+  for (const r of rows) for (const k of Object.keys(r)) if (!names.includes(k)) names.push(k);
+  const columns: Record<string, Vector> = {};
+  for (const name of names) {
+    const values = rows.map((r) => r[name]);
+    const present = values.filter((v) => v !== null && v !== undefined);
+    if (present.every((v) => typeof v === 'string')) {
+      columns[name] = vectorFromArray(
+        values.map((v) => (v === undefined || v === null ? null : (v as string))),
+        new Utf8(),
+      );
+    } else if (present.every((v) => typeof v === 'number' || typeof v === 'boolean')) {
+      columns[name] = vectorFromArray(
+        values.map((v) => (v === undefined || v === null ? null : Number(v))),
+        new Float64(),
+      );
+    } else {
+      throw new RangeError(`writeResultsArrow: column '${name}' expected numbers or strings, received a mix`);
+    }
+  }
+  write(path, new Table(columns), options);
+}

@@ -1,0 +1,236 @@
+import { existsSync, readdirSync, readFileSync } from 'node:fs';
+import { basename, dirname, extname, join, resolve } from 'node:path';
+import { type ChannelBlock, constellation, type DualPol, type ModulationName } from '@intradyne/core';
+import { loadReferenceArrow, readArrowCapture, readArrowCaptureAsync, readArrowMetadata } from '../arrow/arrow-capture.js';
+import { InputError } from '../errors/input-error.js';
+import { type CsvCaptureOptions, readCsvCapture, readCsvCaptureAsync } from '../load/csv-capture.js';
+import { type CaptureDescriptor, DESCRIPTOR_FIELDS, type FieldValue, parseDescriptor, validateDescriptor } from './descriptor.js';
+import { parseJsonWithPositions, plainJson } from './json-positions.js';
+import { checkReferenceConstellation, loadReferenceCsv } from './reference.js';
+
+/** Data file formats, by extension: `.csv`; `.arrow` (IPC file) and `.arrows` (IPC stream). */
+export const DATA_EXTENSIONS: Readonly<Record<string, 'csv' | 'arrow'>> = {
+  '.csv': 'csv',
+  '.arrow': 'arrow',
+  '.arrows': 'arrow',
+};
+
+/** A capture: its files, its validated descriptor, its reference, and readers of its samples. */
+export interface CaptureDescription {
+  /** The data file's name without extension. */
+  readonly name: string;
+  readonly dataPath: string;
+  readonly format: 'csv' | 'arrow';
+  /** The sidecar, or undefined for an Arrow capture described by its schema metadata alone. */
+  readonly descriptorPath: string | undefined;
+  /** Descriptor fields after defaults and overrides; `sampleRate` always set. */
+  readonly descriptor: CaptureDescriptor & { readonly sampleRate: number };
+  readonly sampleRate: number;
+  readonly symbolRate: number;
+  readonly samplesPerSymbol: number;
+  readonly modulation: ModulationName;
+  readonly rollOff: number;
+  /** ps/nm; undefined when not stated (to be estimated). */
+  readonly dispersionPsPerNm: number | undefined;
+  readonly referencePath: string;
+  /** Transmitted symbols, as written (any scale), at least 32. */
+  readonly reference: DualPol;
+  /** Streams the capture in blocks (bounded memory); `blockSize` applies to CSV (Arrow yields one block per batch). */
+  blocks(options?: { readonly blockSize?: number }): Generator<ChannelBlock, void, undefined>;
+  /** The asynchronous form of `blocks`. */
+  blocksAsync(options?: { readonly blockSize?: number }): AsyncGenerator<ChannelBlock, void, undefined>;
+}
+
+/** The sidecar descriptor path of a data file: same folder, same name, `.json`. */
+export function descriptorPathFor(dataPath: string): string {
+  return join(dirname(dataPath), `${basename(dataPath, extname(dataPath))}.json`);
+}
+
+/**
+ * The data file of a capture given by its data file or by its descriptor
+ * (the same-named `.csv`, `.arrow` or `.arrows` beside it).
+ * @throws InputError when the file does not exist, has no data extension, or
+ *   the descriptor has no single data file beside it
+ */
+export function resolveDataPath(path: string): string {
+  const ext = extname(path).toLowerCase();
+  if (ext === '.json') {
+    const base = join(dirname(path), basename(path, extname(path)));
+    const found = Object.keys(DATA_EXTENSIONS)
+      .map((e) => base + e)
+      .filter((p) => existsSync(p));
+    if (found.length !== 1) {
+      throw new InputError(
+        { file: path },
+        'capture',
+        `one data file of the same name beside the descriptor (${Object.keys(DATA_EXTENSIONS).join(', ')})`,
+        found.length === 0 ? 'none' : found.join(', '),
+      );
+    }
+    return found[0];
+  }
+  if (!(ext in DATA_EXTENSIONS)) {
+    throw new InputError(
+      { file: path },
+      'capture',
+      `a data file (${Object.keys(DATA_EXTENSIONS).join(', ')}) or its descriptor (.json)`,
+      `a '${ext}' file`,
+    );
+  }
+  if (!existsSync(path)) throw new InputError({ file: path }, 'capture', 'an existing file', 'no such file');
+  return path;
+}
+
+function metadataFields(meta: ReadonlyMap<string, string>): Map<string, FieldValue> {
+  const fields = new Map<string, FieldValue>();
+  for (const [k, text] of meta) {
+    if (!(DESCRIPTOR_FIELDS as readonly string[]).includes(k)) continue;
+    let value: unknown = text;
+    try {
+      value = JSON.parse(text);
+    } catch {
+      // A plain string value ("16qam").
+    }
+    fields.set(k, { value });
+  }
+  return fields;
+}
+
+/**
+ * Opens a capture: finds its descriptor (`<name>.json` beside the data
+ * file), loads and validates it (an Arrow capture may also carry descriptor
+ * fields in its schema metadata; the sidecar wins), applies `overrides`
+ * (command-line options win over the descriptor), loads the reference
+ * symbols (path relative to the descriptor; CSV or Arrow) and checks them
+ * against the modulation. Without a stated sample rate, a CSV's time column
+ * gives it (read from the first rows now, checked over the whole file while
+ * streaming).
+ * @param path the data file or its descriptor
+ * @throws InputError naming the file, line, column and field of any problem:
+ *   no descriptor, a bad field, a missing or malformed reference, a reference
+ *   of another modulation, no sample rate
+ */
+export function openCapture(path: string, overrides: Readonly<Record<string, unknown>> = {}): CaptureDescription {
+  const dataPath = resolveDataPath(path);
+  const format = DATA_EXTENSIONS[extname(dataPath).toLowerCase()];
+  const sidecar = descriptorPathFor(dataPath);
+  const hasSidecar = existsSync(sidecar);
+  const fields = format === 'arrow' ? metadataFields(readArrowMetadata(dataPath)) : new Map<string, FieldValue>();
+  const descriptorFile = hasSidecar ? sidecar : dataPath;
+  if (hasSidecar) {
+    const text = readFileSync(sidecar, 'utf8');
+    // Validate the sidecar alone first, so that its messages carry its lines and columns.
+    const root = parseJsonWithPositions(text, sidecar);
+    // A root that is not an object: parseDescriptor reports it.
+    if (root.kind !== 'object') parseDescriptor(text, sidecar);
+    if (root.kind === 'object')
+      for (const [k, v] of root.members) fields.set(k, { value: plainJson(v), line: v.line, column: v.column });
+  } else if (fields.size === 0) {
+    throw new InputError(
+      { file: dataPath },
+      'descriptor',
+      `a descriptor ${sidecar} beside the data file${format === 'arrow' ? ' (or descriptor fields in the schema metadata)' : ''}`,
+      'none',
+    );
+  }
+  for (const [k, v] of Object.entries(overrides)) if (v !== undefined) fields.set(k, { value: v });
+  const d = validateDescriptor(fields, descriptorFile);
+  let sampleRate = d.sampleRate;
+  if (sampleRate === undefined) {
+    if (format === 'csv') {
+      const first = readCsvCapture(dataPath, { columns: d.columns, blockSize: 1001 }).next();
+      sampleRate = first.done ? undefined : first.value.sampleRate;
+    }
+    if (sampleRate === undefined) {
+      throw new InputError(
+        { file: descriptorFile },
+        "field 'sampleRate'",
+        'a positive number of Sa/s (the data has no time column)',
+        'nothing (the field is missing)',
+      );
+    }
+    if (sampleRate < d.symbolRate) {
+      throw new InputError(
+        { file: dataPath },
+        'time column',
+        `a sample rate of at least the symbol rate (${d.symbolRate} Bd)`,
+        `${sampleRate} Sa/s`,
+      );
+    }
+  }
+  const referencePath = resolve(dirname(descriptorFile), d.reference);
+  const reference = loadReference(referencePath, descriptorFile, d.reference);
+  checkReferenceConstellation(reference, constellation(d.modulation), referencePath);
+  const samplesPerSymbol = sampleRate / d.symbolRate;
+  const rate = sampleRate;
+  const csvOptions = (o?: { blockSize?: number }): CsvCaptureOptions => ({
+    columns: d.columns,
+    sampleRate: rate,
+    samplesPerSymbol,
+    blockSize: o?.blockSize,
+  });
+  const arrowColumns = d.columns ? Object.fromEntries(Object.entries(d.columns).filter(([k]) => k !== 't')) : undefined;
+  const arrowOptions = { columns: arrowColumns, sampleRate: rate, samplesPerSymbol };
+  return {
+    name: basename(dataPath, extname(dataPath)),
+    dataPath,
+    format,
+    descriptorPath: hasSidecar ? sidecar : undefined,
+    descriptor: { ...d, sampleRate },
+    sampleRate,
+    symbolRate: d.symbolRate,
+    samplesPerSymbol,
+    modulation: d.modulation,
+    rollOff: d.rollOff,
+    dispersionPsPerNm: d.dispersionPsPerNm,
+    referencePath,
+    reference,
+    blocks: (o) => (format === 'csv' ? readCsvCapture(dataPath, csvOptions(o)) : readArrowCapture(dataPath, arrowOptions)),
+    blocksAsync: (o) =>
+      format === 'csv' ? readCsvCaptureAsync(dataPath, csvOptions(o)) : readArrowCaptureAsync(dataPath, arrowOptions),
+  };
+}
+
+/**
+ * Loads reference symbols by extension: `.csv` or `.arrow`/`.arrows`.
+ * @throws InputError naming the descriptor when the file is missing or of another type
+ */
+export function loadReference(path: string, descriptorFile: string, written = path): DualPol {
+  if (!existsSync(path)) {
+    throw new InputError(
+      { file: descriptorFile },
+      "field 'reference'",
+      'the path of an existing file (relative to the descriptor)',
+      `${JSON.stringify(written)} (${path}: no such file)`,
+    );
+  }
+  const ext = extname(path).toLowerCase();
+  if (ext === '.csv') return loadReferenceCsv(path);
+  if (ext === '.arrow' || ext === '.arrows') return loadReferenceArrow(path);
+  throw new InputError({ file: descriptorFile }, "field 'reference'", 'a .csv, .arrow or .arrows file', JSON.stringify(written));
+}
+
+/**
+ * The captures of a folder and its subfolders: every data file (`.csv`,
+ * `.arrow`, `.arrows`) with a same-named `.json` beside it, and nothing else
+ * (a reference file has no descriptor). Names starting with '.' are skipped
+ * (temporary files of atomic writes, hidden folders).
+ * @returns data file paths, sorted
+ */
+export function listCaptures(dir: string): string[] {
+  const found: string[] = [];
+  const walk = (d: string) => {
+    const entries = readdirSync(d, { withFileTypes: true });
+    const names = new Set(entries.filter((e) => e.isFile()).map((e) => e.name));
+    for (const e of entries) {
+      if (e.name.startsWith('.')) continue;
+      const p = join(d, e.name);
+      if (e.isDirectory()) walk(p);
+      else if (e.isFile() && extname(e.name).toLowerCase() in DATA_EXTENSIONS) {
+        if (names.has(`${basename(e.name, extname(e.name))}.json`)) found.push(p);
+      }
+    }
+  };
+  walk(dir);
+  return found.sort();
+}

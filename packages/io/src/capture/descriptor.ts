@@ -1,0 +1,188 @@
+import { readFileSync } from 'node:fs';
+import { MODULATIONS, type ModulationName } from '@intradyne/core';
+import { InputError, quoteText } from '../errors/input-error.js';
+import type { CaptureColumn } from '../load/csv-capture.js';
+import { parseJsonWithPositions, plainJson } from './json-positions.js';
+
+/**
+ * A capture's descriptor: the sidecar `<capture-name>.json` beside the data
+ * file (or, for Arrow captures, fields of the schema metadata).
+ *
+ * Fields (units in the names' documentation):
+ * - `sampleRate` (Sa/s): the scope rate; may be left out when the CSV has a
+ *   time column, from which the loader infers it;
+ * - `symbolRate` (Bd), required;
+ * - `modulation`: `qpsk`, `16qam` or `64qam` (case-insensitive), required;
+ * - `reference`: path of the transmitted symbols, relative to the
+ *   descriptor's folder, required;
+ * - `rollOff`: transmitter root-raised-cosine roll-off in (0, 1], default
+ *   {@link DESCRIPTOR_DEFAULTS}.rollOff = 0.1 (the simulator's default);
+ * - `dispersionPsPerNm`: accumulated chromatic dispersion, ps/nm; absent
+ *   means not known (the receiver estimates it);
+ * - `columns`: header names of the CSV columns, e.g. `{ "xi": "CH1" }`;
+ * - `notes`: free text;
+ * - `simulation`: what `intradyne simulate` records (any value; accepted
+ *   and ignored).
+ * Any other field is refused, so that a misspelt name does not pass silently.
+ */
+export interface CaptureDescriptor {
+  readonly sampleRate?: number;
+  readonly symbolRate: number;
+  readonly modulation: ModulationName;
+  readonly reference: string;
+  readonly rollOff: number;
+  readonly dispersionPsPerNm?: number;
+  readonly columns?: Partial<Record<CaptureColumn, string>>;
+  readonly notes?: string;
+}
+
+/** Defaults of the optional descriptor fields. */
+export const DESCRIPTOR_DEFAULTS = { rollOff: 0.1 } as const;
+
+/** The fields a descriptor may hold. */
+export const DESCRIPTOR_FIELDS = [
+  'sampleRate',
+  'symbolRate',
+  'modulation',
+  'reference',
+  'rollOff',
+  'dispersionPsPerNm',
+  'columns',
+  'notes',
+  'simulation',
+] as const;
+
+/** A field value with where it was written (line and column when from JSON text). */
+export interface FieldValue {
+  readonly value: unknown;
+  readonly line?: number;
+  readonly column?: number;
+}
+
+const COLUMN_KEYS: readonly CaptureColumn[] = ['xi', 'xq', 'yi', 'yq', 't'];
+
+/**
+ * Parses and validates a descriptor's JSON text.
+ * @param file the descriptor's path, for messages
+ * @throws InputError naming the file, the line and column, the field, what was
+ *   expected and what was received: a JSON syntax error, a root that is not an
+ *   object, a missing required field, a wrong value, an unknown field
+ * @example parseDescriptor('{"symbolRate": 32e9, "modulation": "qpsk", "reference": "ref.csv"}', 'run.json')
+ */
+export function parseDescriptor(text: string, file: string): CaptureDescriptor {
+  const root = parseJsonWithPositions(text, file);
+  if (root.kind !== 'object') {
+    throw new InputError({ file, line: root.line, column: root.column }, 'descriptor', 'a JSON object', `a JSON ${root.kind}`);
+  }
+  const fields = new Map<string, FieldValue>();
+  for (const [k, v] of root.members) fields.set(k, { value: plainJson(v), line: v.line, column: v.column });
+  return validateDescriptor(fields, file, { line: root.line, column: root.column });
+}
+
+/**
+ * Reads a descriptor file.
+ * @throws InputError as {@link parseDescriptor}, or when the file cannot be read
+ */
+export function readDescriptor(path: string): CaptureDescriptor {
+  let text: string;
+  try {
+    text = readFileSync(path, 'utf8');
+  } catch (e) {
+    throw new InputError({ file: path }, 'descriptor', 'a readable file', (e as NodeJS.ErrnoException).code ?? String(e));
+  }
+  return parseDescriptor(text, path);
+}
+
+function describe(v: unknown): string {
+  if (v === undefined) return 'nothing (the field is missing)';
+  if (typeof v === 'string') return `the string ${quoteText(v)}`;
+  if (typeof v === 'number') return String(v);
+  if (Array.isArray(v)) return 'an array';
+  if (v === null) return 'null';
+  return typeof v === 'object' ? 'an object' : String(v);
+}
+
+/**
+ * Validates descriptor fields gathered from any source (JSON text, Arrow
+ * schema metadata). `at` locates the whole descriptor for missing fields.
+ * @throws InputError as {@link parseDescriptor}
+ */
+export function validateDescriptor(
+  fields: ReadonlyMap<string, FieldValue>,
+  file: string,
+  at: { line?: number; column?: number } = {},
+): CaptureDescriptor {
+  const where = (name: string) => {
+    const f = fields.get(name);
+    return f?.line !== undefined ? { file, line: f.line, column: f.column } : { file, ...at };
+  };
+  const fail = (name: string, expected: string): never => {
+    throw new InputError(where(name), `field '${name}'`, expected, describe(fields.get(name)?.value));
+  };
+  for (const [name, f] of fields) {
+    if (!(DESCRIPTOR_FIELDS as readonly string[]).includes(name)) {
+      throw new InputError(
+        f.line !== undefined ? { file, line: f.line, column: f.column } : { file },
+        `field '${name}'`,
+        `one of the descriptor fields ${DESCRIPTOR_FIELDS.join(', ')}`,
+        'an unknown field',
+      );
+    }
+  }
+  const value = (name: string) => fields.get(name)?.value;
+  const positive = (name: string, unit: string, required: boolean): number | undefined => {
+    const v = value(name);
+    if (v === undefined && !required) return undefined;
+    if (typeof v !== 'number' || !Number.isFinite(v) || v <= 0) fail(name, `a positive number of ${unit}`);
+    return v as number;
+  };
+  const sampleRate = positive('sampleRate', 'Sa/s', false);
+  const symbolRate = positive('symbolRate', 'Bd', true) as number;
+  const m = value('modulation');
+  const modulation =
+    typeof m === 'string' && (MODULATIONS as readonly string[]).includes(m.toLowerCase())
+      ? (m.toLowerCase() as ModulationName)
+      : fail('modulation', `one of ${MODULATIONS.map((x) => `"${x}"`).join(', ')}`);
+  const r = value('reference');
+  if (typeof r !== 'string' || r.trim() === '')
+    fail('reference', 'the path of the reference symbols (relative to the descriptor)');
+  const ro = value('rollOff');
+  let rollOff: number = DESCRIPTOR_DEFAULTS.rollOff;
+  if (ro !== undefined) {
+    if (typeof ro !== 'number' || !(ro > 0 && ro <= 1)) fail('rollOff', 'a roll-off in (0, 1]');
+    rollOff = ro as number;
+  }
+  const d = value('dispersionPsPerNm');
+  if (d !== undefined && (typeof d !== 'number' || !Number.isFinite(d))) fail('dispersionPsPerNm', 'a finite number of ps/nm');
+  const c = value('columns');
+  let columns: Partial<Record<CaptureColumn, string>> | undefined;
+  if (c !== undefined) {
+    if (typeof c !== 'object' || c === null || Array.isArray(c)) fail('columns', 'an object such as {"xi": "CH1"}');
+    for (const [k, v] of Object.entries(c as object)) {
+      if (!(COLUMN_KEYS as readonly string[]).includes(k) || typeof v !== 'string' || v.trim() === '') {
+        throw new InputError(
+          where('columns'),
+          `field 'columns'`,
+          `keys among ${COLUMN_KEYS.join(', ')} with column names as strings`,
+          `${quoteText(k)}: ${describe(v)}`,
+        );
+      }
+    }
+    columns = c as Partial<Record<CaptureColumn, string>>;
+  }
+  const n = value('notes');
+  if (n !== undefined && typeof n !== 'string') fail('notes', 'a string');
+  if (sampleRate !== undefined && sampleRate < symbolRate) {
+    fail('sampleRate', `at least the symbol rate (${symbolRate} Bd) in Sa/s`);
+  }
+  return {
+    ...(sampleRate !== undefined ? { sampleRate } : {}),
+    symbolRate,
+    modulation,
+    reference: r as string,
+    rollOff,
+    ...(d !== undefined ? { dispersionPsPerNm: d as number } : {}),
+    ...(columns ? { columns } : {}),
+    ...(n !== undefined ? { notes: n as string } : {}),
+  };
+}
