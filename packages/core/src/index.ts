@@ -7,6 +7,12 @@
 
 export * from './dsp/fft.js';
 export * from './dsp/rrc.js';
+export * from './equalizer/butterfly-kernel.js';
+export * from './equalizer/cma.js';
+export * from './equalizer/dd-lms.js';
+export * from './equalizer/equalizer.js';
+export * from './equalizer/rde.js';
+export * from './equalizer/update-rule.js';
 export * from './filter/fir.js';
 export * from './frontend/combine-channels.js';
 export * from './modulation/constellation.js';
