@@ -9,8 +9,12 @@ export interface PhaseLoopGains {
   readonly integral: number;
 }
 
-/** Default loop gains: kp = 0.02 and ki = kp²/4, a critically damped second-order loop (common practice). */
-export const DEFAULT_PHASE_LOOP: PhaseLoopGains = { proportional: 0.02, integral: 0.02 ** 2 / 4 };
+/**
+ * Default loop gains: kp = 0.05 and ki = kp²/4, a critically damped second-order loop (common
+ * practice). A slower loop (kp = 0.02 was tried) leaves more of a carrier offset to the taps, which then
+ * rotate z; at kp = 0.05 the loop takes it all (measured: 100 MHz at 32 GBd, 16QAM at 20 dB).
+ */
+export const DEFAULT_PHASE_LOOP: PhaseLoopGains = { proportional: 0.05, integral: 0.05 ** 2 / 4 };
 
 /**
  * Decision-directed LMS with its own carrier-phase loop, for after blind
@@ -116,6 +120,17 @@ export class DdLmsRule implements UpdateRule {
       this.theta[pol] = Math.atan2(-this.s4[p + 1], -this.s4[p]) / 4;
       this.nu[pol] = 0;
     }
+  }
+
+  /**
+   * Moves the loop back `symbols` symbols, θ ← θ − ν·symbols, when the
+   * equalizer starts over from the beginning of the capture (a new pass, or
+   * the output run after the passes): the carrier there is continued back at
+   * the loop's frequency instead of jumping by whatever phase the carrier
+   * turned through over the buffer.
+   */
+  rewind(symbols: number): void {
+    for (let pol = 0; pol < 2; pol++) this.theta[pol] -= this.nu[pol] * symbols;
   }
 
   /** Loop phase θ (rad) and frequency ν (rad per symbol) of a polarization. */

@@ -494,7 +494,12 @@ class ButterflyEqualizer implements Stage<'twoSps', 'symbols', EqualizerDiagnost
     uy.set(this.collectY.subarray(0, 2 * n), 2 * c);
     // Symbols whose whole window lies inside the buffer: 2k + c ≤ n − 1.
     const count = n - 1 - c >= 0 ? Math.floor((n - 1 - c) / 2) + 1 : 0;
-    for (let p = 0; p < this.o.passes; p++) this.run(ux, uy, 2 * c, count, null, null);
+    for (let p = 0; p < this.o.passes; p++) {
+      // Each pass and the output run start over from the capture's first symbol.
+      if (p > 0) this.rewindCarrier(count);
+      this.run(ux, uy, 2 * c, count, null, null);
+    }
+    if (this.o.passes > 0) this.rewindCarrier(count);
     this.collecting = false;
     const x = this.collectX.subarray(0, 2 * this.collected) as ComplexArray;
     const y = this.collectY.subarray(0, 2 * this.collected) as ComplexArray;
@@ -614,6 +619,11 @@ class ButterflyEqualizer implements Stage<'twoSps', 'symbols', EqualizerDiagnost
       const a = this.adapted - 1;
       this.currentRule = a < o.pre ? 'cma' : a >= ddStart ? 'dd-lms' : this.blind.name;
     }
+  }
+
+  /** Carries the DD-LMS loop back to the capture's start if it is running. */
+  private rewindCarrier(symbols: number): void {
+    if (this.dd && this.o.dd && this.adapted > this.o.dd.startSymbol) this.dd.rewind(symbols);
   }
 
   private tracePoint(): void {
