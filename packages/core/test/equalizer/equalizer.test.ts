@@ -1,7 +1,15 @@
 import { describe, expect, it } from 'vitest';
-import { butterflyEqualizer, complexArray, OptionError } from '../../src/index.js';
+import {
+  butterflyEqualizer,
+  complexArray,
+  concatBlocks,
+  emptyBlock,
+  idealMatchedFilter,
+  OptionError,
+  simulate,
+} from '../../src/index.js';
 import { alignOutputs } from '../support/align-outputs.js';
-import { EDGE, equalizeSimulated } from './run-equalizer.js';
+import { EDGE, equalizeSimulated } from '../support/equalize-simulated.js';
 
 // Test signals: the simulator's field after an ideal root-raised-cosine matched filter at 2 samples per
 // symbol, so the only impairments left are what the equalizer must undo (SOP, DGD, dispersion) and the
@@ -222,5 +230,40 @@ describe('options', () => {
     const b = eq.flush();
     expect((a.x.length + (b?.x.length ?? 0)) / 2).toBe(11);
     expect(a.sampleRate).toBe(32e9);
+  });
+});
+
+describe('block-size invariance on a real signal', () => {
+  it('taps and output are identical when a DP-16QAM capture arrives in odd-sized blocks', () => {
+    const cap = simulate({
+      seed: 9,
+      modulation: '16qam',
+      symbols: 4096,
+      symbolRate: 32e9,
+      channel: { esN0Db: 20, sop: 'random', dgdPs: 10 },
+    });
+    const x = idealMatchedFilter(cap.truth.field.x, 4096, 32e9, cap.rollOff, 2);
+    const y = idealMatchedFilter(cap.truth.field.y, 4096, 32e9, cap.rollOff, 2);
+    const options = { modulation: '16qam' as const, preConvergenceSymbols: 1024, convergeOnStart: { symbols: 2048, passes: 2 } };
+    const block = (a: number, b: number) =>
+      ({
+        domain: 'twoSps',
+        x: x.subarray(2 * a, 2 * b),
+        y: y.subarray(2 * a, 2 * b),
+        sampleRate: 64e9,
+        samplesPerSymbol: 2,
+      }) as const;
+    const one = butterflyEqualizer(options);
+    const whole = concatBlocks([one.process(block(0, 8192)), one.flush() ?? emptyBlock('symbols', 32e9, 1)]);
+    const many = butterflyEqualizer(options);
+    const parts = [];
+    // Odd sizes, so that a symbol's two samples straddle block boundaries.
+    for (let at = 0, size = 1; at < 8192; at += size, size = (size * 7 + 3) % 1001)
+      parts.push(many.process(block(at, Math.min(8192, at + size))));
+    parts.push(many.flush() ?? emptyBlock('symbols', 32e9, 1));
+    const split = concatBlocks(parts);
+    expect(Array.from(split.x)).toEqual(Array.from(whole.x));
+    expect(Array.from(split.y)).toEqual(Array.from(whole.y));
+    expect(Array.from(many.diagnostics().finalTaps.xy)).toEqual(Array.from(one.diagnostics().finalTaps.xy));
   });
 });

@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { complexArray } from '../../src/index.js';
-import { equalizeSimulated } from './run-equalizer.js';
+import { equalizeSimulated } from '../support/equalize-simulated.js';
 
 // Singular convergence — both outputs locking onto the same polarization — is the classic failure of CMA
 // polarization demultiplexing (Kikuchi, Opt. Express 19(10), 2011). Each run is judged twice: by the

@@ -9,7 +9,7 @@ import {
   type SimulationOptions,
   simulate,
 } from '../../src/index.js';
-import { type Alignment, alignOutputs } from '../support/align-outputs.js';
+import { type Alignment, alignOutputs } from './align-outputs.js';
 
 export interface EqualizedRun {
   readonly cap: SimulatedCapture;
