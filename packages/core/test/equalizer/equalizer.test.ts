@@ -1,5 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import {
+  asComplex,
   butterflyEqualizer,
   complexArray,
   concatBlocks,
@@ -248,8 +249,8 @@ describe('block-size invariance on a real signal', () => {
     const block = (a: number, b: number) =>
       ({
         domain: 'twoSps',
-        x: x.subarray(2 * a, 2 * b),
-        y: y.subarray(2 * a, 2 * b),
+        x: asComplex(x.subarray(2 * a, 2 * b)),
+        y: asComplex(y.subarray(2 * a, 2 * b)),
         sampleRate: 64e9,
         samplesPerSymbol: 2,
       }) as const;
