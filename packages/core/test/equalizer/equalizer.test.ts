@@ -10,7 +10,8 @@ import {
   simulate,
 } from '../../src/index.js';
 import { alignOutputs } from '../support/align-outputs.js';
-import { EDGE, equalizeSimulated } from '../support/equalize-simulated.js';
+import { EDGE, type EqualizedRun, equalizeSimulated } from '../support/equalize-simulated.js';
+import { type GenieOptions, genieReceiver } from '../support/genie-receiver.js';
 
 // Test signals: the simulator's field after an ideal root-raised-cosine matched filter at 2 samples per
 // symbol, so the only impairments left are what the equalizer must undo (SOP, DGD, dispersion) and the
@@ -21,6 +22,15 @@ import { EDGE, equalizeSimulated } from '../support/equalize-simulated.js';
 // 16,384 symbols: the data-aided noise-power estimate over N symbols has a relative standard deviation
 // of about 1/√N = 0.8 %, i.e. 0.034 dB, ten times finer than the 0.3 dB asked.
 const N = 16384;
+
+/** Realized channel SNR per transmitted polarization: the genie receiver's data-aided SNR, dB. */
+function genieSnr(r: EqualizedRun, options: GenieOptions = { dgdPs: 10 }): { x: number; y: number } {
+  const a = alignOutputs(genieReceiver(r.cap, r.cap.reference.x.length >> 1, options), r.cap.reference, 0, EDGE);
+  // The genie keeps the transmitter's order, delay and phase: check it, so that a broken genie cannot pass.
+  expect(a.x.source).toBe('x');
+  expect(a.y.source).toBe('y');
+  return { x: a.x.snrDb, y: a.y.snrDb };
+}
 
 describe('butterfly equalizer on DP signals at 32 GBd, random SOP, 10 ps DGD', () => {
   for (const seed of [1, 2, 3]) {
@@ -36,8 +46,12 @@ describe('butterfly equalizer on DP signals at 32 GBd, random SOP, 10 ps DGD', (
       expect(r.diag.singularity.singular).toBe(false);
       // Each output carries its own polarization.
       expect(r.align.x.source).not.toBe(r.align.y.source);
+      const genie = genieSnr(r);
       for (const m of [r.align.x, r.align.y]) {
+        // Against the nominal channel SNR…
         expect(15 - m.snrDb).toBeLessThanOrEqual(0.3);
+        // …and against the realized one: the receiver that knows the channel, same source.
+        expect(genie[m.source] - m.snrDb).toBeLessThanOrEqual(0.3);
         // Not better than the channel beyond the estimate's spread (4σ = 0.14 dB).
         expect(m.snrDb - 15).toBeLessThanOrEqual(0.14);
       }
@@ -54,11 +68,17 @@ describe('butterfly equalizer on DP signals at 32 GBd, random SOP, 10 ps DGD', (
       expect(r.diag.convergence.converged).toBe(true);
       expect(r.diag.phases.map((p) => p.rule)).toEqual(['cma', 'rde']);
       expect(r.align.x.source).not.toBe(r.align.y.source);
-      // The dual-polarization SNR (noise pooled over both outputs) is held to 0.3 dB; each output
-      // alone to 0.4 dB: RDE's misadjustment at 20 dB differs a little between the two outputs
-      // (measured: worst single output 0.36 dB, seed 2).
+      // Each output within 0.3 dB of the realized channel SNR of its source (the receiver that knows
+      // the channel); against the nominal 20 dB the dual-polarization SNR (noise pooled over both
+      // outputs) is held to 0.3 dB and each output alone to 0.4 dB, because this noise realization
+      // itself sits up to 0.1 dB below nominal on one polarization (seed 2: realized 20.03 and 19.91 dB,
+      // equalizer 19.83 and 19.64 dB).
+      const genie = genieSnr(r);
+      for (const m of [r.align.x, r.align.y]) {
+        expect(genie[m.source] - m.snrDb).toBeLessThanOrEqual(0.3);
+        expect(20 - m.snrDb).toBeLessThanOrEqual(0.4);
+      }
       expect(20 - r.pooledSnrDb).toBeLessThanOrEqual(0.3);
-      for (const m of [r.align.x, r.align.y]) expect(20 - m.snrDb).toBeLessThanOrEqual(0.4);
       expect(r.pooledSnrDb - 20).toBeLessThanOrEqual(0.14);
     });
   }
@@ -105,8 +125,11 @@ describe('residual dispersion', () => {
       expect(dispersed.diag.convergence.converged).toBe(true);
       expect(dispersed.align.x.source).not.toBe(dispersed.align.y.source);
       expect(flat.pooledSnrDb - dispersed.pooledSnrDb).toBeLessThanOrEqual(0.5);
-      // And against the channel itself (measured 0.3–0.6 dB with 7 taps).
-      expect(20 - dispersed.pooledSnrDb).toBeLessThanOrEqual(0.8);
+      // And against the receiver that undoes the dispersion exactly (measured 0.3–0.6 dB with 7 taps:
+      // 7 taps are also short for the roll-off band alone, see the flat case).
+      const genie = genieSnr(dispersed, { dispersionPsPerNm: 1000 });
+      const geniePooled = -10 * Math.log10((10 ** (-genie.x / 10) + 10 ** (-genie.y / 10)) / 2);
+      expect(geniePooled - dispersed.pooledSnrDb).toBeLessThanOrEqual(0.8);
     });
   }
 });
