@@ -62,7 +62,11 @@ export interface EqualizerOptions {
    * the equalizer adapts over them `passes` times (each pass from a zero
    * delay line, the taps carried over), and then processes the capture from
    * its first sample with the converged taps, still adapting. The output thus
-   * starts converged. `passes` = 0 streams from the first sample with no
+   * starts converged. A pass adapts on the symbols whose whole window lies
+   * in the buffer (⌊(2·symbols − 1 − c)/2⌋ + 1 of them, c = (L − 1)/2); a
+   * running DD-LMS loop is carried back to the start at each restart
+   * (θ ← θ − ν·symbols). Nothing is output until the buffer is full (or the
+   * stream ends). `passes` = 0 streams from the first sample with no
    * buffering. A capture shorter than `symbols` is used whole.
    */
   readonly convergeOnStart?: { readonly symbols: number; readonly passes: number };
