@@ -65,6 +65,12 @@ export { besselI0, kaiserBeta, kaiserOrder, kaiserWindow } from './dsp/kaiser.js
 export * from './dsp/rrc.js';
 export * from './dsp/spectrum-summary.js';
 export * from './dsp/welch.js';
+export * from './equalizer/butterfly-kernel.js';
+export * from './equalizer/cma.js';
+export * from './equalizer/dd-lms.js';
+export * from './equalizer/equalizer.js';
+export * from './equalizer/rde.js';
+export * from './equalizer/update-rule.js';
 export * from './filter/fir.js';
 export * from './frontend/combine-channels.js';
 export { type DeskewChannelsDiagnostics, type DeskewChannelsOptions, deskewChannels } from './frontend/deskew-channels.js';

@@ -2,6 +2,7 @@ import {
   type AnyStage,
   type BlockOf,
   blindPhaseSearch,
+  butterflyEqualizer,
   type ChannelBlock,
   combineChannels,
   compensateDispersion,
@@ -182,5 +183,29 @@ export const stageCatalog: CatalogEntry[] = [
     name: 'gardner-clock-recovery (given start)',
     make: () => gardnerClockRecovery({ initialTiming: 0.7, rollOff: 0.5 }),
     input: () => randomField('twoSps', 700, 16),
+  },
+  {
+    // Every path: buffered start with 2 passes (the buffer ends mid-stream), pre-convergence with the
+    // orthogonal y-filters and its annealed step, RDE, DD-LMS, updates every 2nd symbol, restarts.
+    name: 'butterfly equalizer (passes over the start, CMA → RDE → DD-LMS)',
+    make: () =>
+      butterflyEqualizer({
+        modulation: '16qam',
+        taps: 7,
+        preConvergenceSymbols: 100,
+        convergeOnStart: { symbols: 150, passes: 2 },
+        ddLms: { startSymbol: 400 },
+        updateEvery: 2,
+        traceEvery: 16,
+        singularity: { orthogonalStart: true, restart: true },
+        convergence: { window: 64 },
+      }),
+    input: () => randomField('twoSps', 1201, 4, 64e9, 2),
+  },
+  {
+    name: 'butterfly equalizer (streaming from the first sample, QPSK)',
+    make: () =>
+      butterflyEqualizer({ modulation: 'qpsk', taps: 9, preConvergenceSymbols: 64, convergeOnStart: { symbols: 1, passes: 0 } }),
+    input: () => randomField('twoSps', 900, 5, 64e9, 2),
   },
 ];

@@ -1,0 +1,208 @@
+/**
+ * Pure kernels of the 2×2 butterfly equalizer. No allocation, no state: the
+ * stage in `equalizer.ts` owns the taps and the delay lines and calls these
+ * once per symbol.
+ *
+ * Tap layout: one `Float64Array` of 8·L numbers holding the four complex
+ * filters hxx, hxy, hyx, hyy one after the other, each L interleaved complex
+ * taps (L odd). Tap j multiplies the input sample j places before the newest
+ * one in the filter window, so with the centre index c = (L − 1)/2 the output
+ * for the symbol at input sample n is
+ *
+ *   x̂ = Σⱼ hxx[j]·x[n + c − j] + hxy[j]·y[n + c − j]
+ *   ŷ = Σⱼ hyx[j]·x[n + c − j] + hyy[j]·y[n + c − j]
+ *
+ * and a centre spike (hxx[c] = hyy[c] = 1) passes sample n through.
+ */
+
+/** Offsets of the four filters in the tap array, in numbers (multiply by L). */
+export const FILTER_XX = 0;
+export const FILTER_XY = 2;
+export const FILTER_YX = 4;
+export const FILTER_YY = 6;
+
+/**
+ * Butterfly outputs for one symbol.
+ * @param taps 8·L numbers (layout above)
+ * @param L taps per filter (odd)
+ * @param ux, uy interleaved complex delay lines of the two input polarizations
+ * @param newest index (in complex samples) of the newest sample of the window, n + c
+ * @param out receives [x̂re, x̂im, ŷre, ŷim]
+ */
+export function butterflyOutput(
+  taps: Float64Array,
+  L: number,
+  ux: Float64Array,
+  uy: Float64Array,
+  newest: number,
+  out: Float64Array,
+): void {
+  const oXY = 2 * L;
+  const oYX = 4 * L;
+  const oYY = 6 * L;
+  let xr = 0;
+  let xi = 0;
+  let yr = 0;
+  let yi = 0;
+  let s = 2 * newest;
+  for (let t = 0; t < 2 * L; t += 2, s -= 2) {
+    const ar = ux[s];
+    const ai = ux[s + 1];
+    const br = uy[s];
+    const bi = uy[s + 1];
+    let hr = taps[t];
+    let hi = taps[t + 1];
+    xr += hr * ar - hi * ai;
+    xi += hr * ai + hi * ar;
+    hr = taps[oXY + t];
+    hi = taps[oXY + t + 1];
+    xr += hr * br - hi * bi;
+    xi += hr * bi + hi * br;
+    hr = taps[oYX + t];
+    hi = taps[oYX + t + 1];
+    yr += hr * ar - hi * ai;
+    yi += hr * ai + hi * ar;
+    hr = taps[oYY + t];
+    hi = taps[oYY + t + 1];
+    yr += hr * br - hi * bi;
+    yi += hr * bi + hi * br;
+  }
+  out[0] = xr;
+  out[1] = xi;
+  out[2] = yr;
+  out[3] = yi;
+}
+
+/**
+ * Stochastic-gradient tap update of one output row (the two filters feeding
+ * output x when `row` = 0, output y when `row` = 1):
+ *
+ *   h ← h + μ·e·u*
+ *
+ * with u the input window and e the rule's error for that output. Every rule
+ * of this library (CMA, RDE, DD-LMS) is written in this form; only e differs.
+ */
+export function updateRow(
+  taps: Float64Array,
+  L: number,
+  ux: Float64Array,
+  uy: Float64Array,
+  newest: number,
+  row: 0 | 1,
+  er: number,
+  ei: number,
+  mu: number,
+): void {
+  const o1 = row === 0 ? 0 : 4 * L;
+  const o2 = o1 + 2 * L;
+  // μ·e once, outside the tap loop.
+  const gr = mu * er;
+  const gi = mu * ei;
+  let s = 2 * newest;
+  for (let t = 0; t < 2 * L; t += 2, s -= 2) {
+    const ar = ux[s];
+    const ai = ux[s + 1];
+    const br = uy[s];
+    const bi = uy[s + 1];
+    // (gr + j·gi)·(ar − j·ai)
+    taps[o1 + t] += gr * ar + gi * ai;
+    taps[o1 + t + 1] += gi * ar - gr * ai;
+    taps[o2 + t] += gr * br + gi * bi;
+    taps[o2 + t + 1] += gi * br - gr * bi;
+  }
+}
+
+/**
+ * Sets the y-row from the x-row by the orthogonality relation of a unitary
+ * 2×2 response (Kikuchi, Opt. Express 19(10), 2011):
+ *
+ *   hyy[j] = conj(hxx[L − 1 − j]),   hyx[j] = −conj(hxy[L − 1 − j])
+ *
+ * i.e. Hyy(ω) = Hxx(ω)*, Hyx(ω) = −Hxy(ω)*, so that
+ * det H(ω) = |Hxx(ω)|² + |Hxy(ω)|² > 0 and output y is the polarization
+ * orthogonal to output x: the two outputs cannot pick the same source.
+ */
+export function deriveOrthogonalRow(taps: Float64Array, L: number): void {
+  const oYX = 4 * L;
+  const oYY = 6 * L;
+  const oXY = 2 * L;
+  for (let j = 0; j < L; j++) {
+    const r = 2 * (L - 1 - j);
+    taps[oYY + 2 * j] = taps[r];
+    taps[oYY + 2 * j + 1] = -taps[r + 1];
+    taps[oYX + 2 * j] = -taps[oXY + r];
+    taps[oYX + 2 * j + 1] = taps[oXY + r + 1];
+  }
+}
+
+/**
+ * How far the equalizer's 2×2 frequency response is from singular, as the
+ * mean over `points` in-band frequencies of the Hadamard ratio
+ *
+ *   ρ(ω) = |det H(ω)| / (‖row x(ω)‖·‖row y(ω)‖)  ∈ [0, 1]
+ *
+ * 1 when the rows are orthogonal (the inverse of a unitary channel), 0 when
+ * they are parallel: both outputs then extract the same source, whatever
+ * delay separates them. Frequencies ω = 2π·f/fs are spread uniformly over
+ * |f| ≤ `bandFraction`·fs/2 (the stage uses 0.4, i.e. |f| ≤ 0.4·Rs at
+ * 2 samples per symbol, inside the signal band for any roll-off).
+ * A row of zero norm counts as singular (ρ = 0).
+ */
+export function rowOrthogonality(taps: Float64Array, L: number, points: number, bandFraction: number): number {
+  const c = (L - 1) / 2;
+  let sum = 0;
+  for (let p = 0; p < points; p++) {
+    const w = Math.PI * bandFraction * (points === 1 ? 0 : -1 + (2 * p) / (points - 1));
+    // H(ω) = Σⱼ h[j]·e^{−jω(j − c)} for each of the four filters.
+    let xxr = 0;
+    let xxi = 0;
+    let xyr = 0;
+    let xyi = 0;
+    let yxr = 0;
+    let yxi = 0;
+    let yyr = 0;
+    let yyi = 0;
+    for (let j = 0; j < L; j++) {
+      const a = -w * (j - c);
+      const cr = Math.cos(a);
+      const ci = Math.sin(a);
+      const t = 2 * j;
+      xxr += taps[t] * cr - taps[t + 1] * ci;
+      xxi += taps[t] * ci + taps[t + 1] * cr;
+      xyr += taps[2 * L + t] * cr - taps[2 * L + t + 1] * ci;
+      xyi += taps[2 * L + t] * ci + taps[2 * L + t + 1] * cr;
+      yxr += taps[4 * L + t] * cr - taps[4 * L + t + 1] * ci;
+      yxi += taps[4 * L + t] * ci + taps[4 * L + t + 1] * cr;
+      yyr += taps[6 * L + t] * cr - taps[6 * L + t + 1] * ci;
+      yyi += taps[6 * L + t] * ci + taps[6 * L + t + 1] * cr;
+    }
+    const detr = xxr * yyr - xxi * yyi - (xyr * yxr - xyi * yxi);
+    const deti = xxr * yyi + xxi * yyr - (xyr * yxi + xyi * yxr);
+    const nx = Math.sqrt(xxr * xxr + xxi * xxi + xyr * xyr + xyi * xyi);
+    const ny = Math.sqrt(yxr * yxr + yxi * yxi + yyr * yyr + yyi * yyi);
+    const norm = nx * ny;
+    sum += norm > 0 ? Math.hypot(detr, deti) / norm : 0;
+  }
+  return sum / points;
+}
+
+/**
+ * Separation index of an equalizer output from its second and fourth
+ * moments m2 = E|z|², m4 = E|z|⁴, for a source with unit power and
+ * E|a|⁴ = `kurtosis` (circular, E a² = 0):
+ *
+ *   σ = (m4 − 2·m2²) / ((kurtosis − 2)·m2²)
+ *
+ * The numerator is the fourth cumulant of z. For z = Σᵢ gᵢ·sᵢ + n (sᵢ the
+ * independent source symbols, both polarizations and all delays; n Gaussian
+ * noise, whose fourth cumulant is zero) it equals (kurtosis − 2)·Σ|gᵢ|⁴, and
+ * Σ|gᵢ|⁴ ≤ (Σ|gᵢ|²)² with equality only for a single source (Shalvi &
+ * Weinstein, IEEE Trans. Inf. Theory 36(2), 1990). Hence σ = 1 for a
+ * perfectly separated noiseless output, 0.5 for an equal mix of the two
+ * polarizations, 0 for Gaussian noise; an output equalized perfectly at
+ * signal-to-noise ratio s gives σ = (s/(1 + s))².
+ */
+export function separationIndex(m2: number, m4: number, kurtosis: number): number {
+  if (!(m2 > 0)) return 0;
+  return (m4 - 2 * m2 * m2) / ((kurtosis - 2) * m2 * m2);
+}

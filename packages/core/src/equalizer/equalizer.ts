@@ -1,0 +1,751 @@
+import { constellation, MODULATIONS, type ModulationName } from '../modulation/constellation.js';
+import { type FieldBlock, fieldBlock } from '../pipeline/blocks.js';
+import { BlockError, type JsonValue, OptionError, type Stage, type StageRecord } from '../pipeline/stage.js';
+import { type ComplexArray, complexArray } from '../signal/complex.js';
+import {
+  butterflyOutput,
+  deriveOrthogonalRow,
+  FILTER_XX,
+  FILTER_XY,
+  FILTER_YX,
+  FILTER_YY,
+  rowOrthogonality,
+  separationIndex,
+  updateRow,
+} from './butterfly-kernel.js';
+import { cmaRule } from './cma.js';
+import { type DdLmsRule, DEFAULT_PHASE_LOOP, ddLmsRule, type PhaseLoopGains } from './dd-lms.js';
+import { rdeRule } from './rde.js';
+import type { UpdateRule } from './update-rule.js';
+
+const NAME = 'butterfly-equalizer';
+
+/** The four filters of the butterfly, L complex taps each (interleaved, 2·L numbers). */
+export interface ButterflyTaps {
+  readonly xx: ComplexArray;
+  readonly xy: ComplexArray;
+  readonly yx: ComplexArray;
+  readonly yy: ComplexArray;
+}
+
+/** Options of {@link butterflyEqualizer}; only `modulation` is required. */
+export interface EqualizerOptions {
+  /** Sets the CMA radius, the RDE rings and the DD-LMS decisions. */
+  readonly modulation: ModulationName;
+  /** Taps per filter L, odd, 1 … 201 (default 11: 5.5 symbols at 2 Sa/symbol). */
+  readonly taps?: number;
+  /** Rule after pre-convergence: 'cma' or 'rde' (default 'cma' for QPSK, 'rde' for 16QAM and 64QAM). */
+  readonly blindRule?: 'cma' | 'rde';
+  /**
+   * Step sizes μ per rule, for an input of about unit power per
+   * polarization, as the front end delivers: `preConvergence` for CMA at
+   * the start of pre-convergence (default 3e-3: fast, coarse; annealed to
+   * `cma` over the second half of pre-convergence), `cma` and `rde` for the
+   * blind phase (defaults 3e-4 and 1e-4; 1e-4 and 3e-5 for 64QAM, whose
+   * dense rings need a quieter start), `ddLms` (default 3e-4).
+   */
+  readonly stepSize?: {
+    readonly preConvergence?: number;
+    readonly cma?: number;
+    readonly rde?: number;
+    readonly ddLms?: number;
+  };
+  /**
+   * Pre-convergence length, in adapted symbols (default 8192): CMA runs first
+   * for this many symbols, with the y-filters derived from the x-filters by
+   * the orthogonality relation when `singularity.orthogonalStart` is on.
+   */
+  readonly preConvergenceSymbols?: number;
+  /**
+   * Passes over the start of the capture (default { symbols: 8192, passes: 2 }):
+   * the first `symbols` symbols of input (2·`symbols` samples) are buffered,
+   * the equalizer adapts over them `passes` times (each pass from a zero
+   * delay line, the taps carried over), and then processes the capture from
+   * its first sample with the converged taps, still adapting. The output thus
+   * starts converged. A pass adapts on the symbols whose whole window lies
+   * in the buffer (⌊(2·symbols − 1 − c)/2⌋ + 1 of them, c = (L − 1)/2); a
+   * running DD-LMS loop is carried back to the start at each restart
+   * (θ ← θ − ν·symbols). Nothing is output until the buffer is full (or the
+   * stream ends). `passes` = 0 streams from the first sample with no
+   * buffering. A capture shorter than `symbols` is used whole.
+   */
+  readonly convergeOnStart?: { readonly symbols: number; readonly passes: number };
+  /** Tap update every n-th symbol (default 1); the error is still computed on every symbol. */
+  readonly updateEvery?: number;
+  /** 'centre-spike' (default: hxx = hyy = δ at the centre tap) or given taps, L complex taps each. */
+  readonly initialTaps?: 'centre-spike' | ButterflyTaps;
+  /**
+   * Decision-directed LMS after the blind rules, with its own carrier-phase
+   * loop (see {@link ddLmsRule}); absent: no DD-LMS. `startSymbol` counts
+   * adapted symbols and must be at least `preConvergenceSymbols`.
+   */
+  readonly ddLms?: { readonly startSymbol: number; readonly phaseLoop?: PhaseLoopGains };
+  /**
+   * Singularity handling: `orthogonalStart` (default false) derives the
+   * y-filters from the x-filters during pre-convergence; `restart` (default
+   * true) re-derives them whenever the row orthogonality falls below
+   * `threshold` (default 0.5) at a check, every 1024 adapted symbols after
+   * pre-convergence. The final taps are judged singular by the same test.
+   * Both prevent singular convergence on SOP and DGD; the orthogonality
+   * relation also conjugates any response common to both polarizations
+   * (residual dispersion comes out with the opposite sign on y), so it is
+   * off by default and restart on detection, which touches only the rare
+   * singular case, is on.
+   */
+  readonly singularity?: { readonly orthogonalStart?: boolean; readonly restart?: boolean; readonly threshold?: number };
+  /**
+   * Convergence verdict over the last `window` output symbols (default
+   * 2048): converged when the separation index of both outputs is at least
+   * `threshold` (default 0.7: a perfectly equalized output passes down to an
+   * SNR of 7.1 dB, an output mixing the polarizations by more than 25° fails)
+   * and the taps are not singular.
+   */
+  readonly convergence?: { readonly window?: number; readonly threshold?: number };
+  /** Symbols per point of the error trace (default 256). */
+  readonly traceEvery?: number;
+}
+
+/** One step of the equalizer's schedule. */
+export interface EqualizerPhase {
+  /** 'cma', 'rde' or 'dd-lms'. */
+  readonly rule: string;
+  /** First adapted symbol of the phase (adapted symbols count over the passes and the stream). */
+  readonly fromSymbol: number;
+  /** True while the y-filters are derived from the x-filters (orthogonal pre-convergence). */
+  readonly orthogonalY: boolean;
+}
+
+/** What the equalizer reports. */
+export interface EqualizerDiagnostics {
+  /** Taps per filter. */
+  readonly taps: number;
+  /** Symbols delivered so far, per polarization. */
+  readonly symbols: number;
+  /** Symbols adapted on, over the passes over the start and the stream. */
+  readonly adaptedSymbols: number;
+  /** The schedule of rules. */
+  readonly phases: readonly EqualizerPhase[];
+  /** Rule in use at the last adapted symbol ('none' before the first). */
+  readonly rule: string;
+  /**
+   * Downsampled error trace: point i is the mean, over adapted symbols
+   * [i·every, (i + 1)·every), of the active rule's cost per symbol (|e|²
+   * for DD-LMS, (R² − |z|²)² for CMA and RDE) and of the separation index.
+   */
+  readonly trace: {
+    readonly every: number;
+    readonly costX: Float64Array;
+    readonly costY: Float64Array;
+    readonly separationX: Float64Array;
+    readonly separationY: Float64Array;
+  };
+  /** The taps now. */
+  readonly finalTaps: ButterflyTaps;
+  readonly convergence: {
+    readonly converged: boolean;
+    /** Separation index of each output over the last `window` output symbols. */
+    readonly separationX: number;
+    readonly separationY: number;
+    readonly window: number;
+    readonly threshold: number;
+    readonly criterion: string;
+  };
+  readonly singularity: {
+    /** Both outputs extract the same source. */
+    readonly singular: boolean;
+    /** Mean in-band Hadamard ratio of the final 2×2 response (1 orthogonal rows, 0 parallel). */
+    readonly rowOrthogonality: number;
+    readonly threshold: number;
+    /** Times the y-filters were re-derived after a failed check. */
+    readonly restarts: number;
+    readonly criterion: string;
+  };
+  /** State of the DD-LMS phase loops (null without DD-LMS or before it starts). */
+  readonly carrierLoop: {
+    /** Loop phase, rad, per polarization. */
+    readonly phaseX: number;
+    readonly phaseY: number;
+    /** Loop frequency, Hz (ν·Rs/2π), per polarization. */
+    readonly frequencyHzX: number;
+    readonly frequencyHzY: number;
+  } | null;
+}
+
+/** Symbols between singularity checks after pre-convergence. */
+const CHECK_EVERY = 1024;
+/** In-band frequencies of the singularity test, and the band (fraction of fs/2): |f| ≤ 0.4·Rs at 2 Sa/symbol. */
+const CHECK_POINTS = 17;
+const CHECK_BAND = 0.4;
+/** Blind outputs observed before the DD-LMS switch to acquire its phase loop. */
+const ACQUIRE_SYMBOLS = 256;
+
+const SEPARATION_CRITERION =
+  'separation index σ = (E|z|⁴ − 2(E|z|²)²)/((E|a|⁴ − 2)(E|z|²)²) of both outputs over the last window of output symbols ' +
+  'at least the threshold, and the taps not singular (σ is 1 for a separated noiseless output, 0.5 for an equal ' +
+  'polarization mix, (s/(1+s))² for a perfect output at SNR s; Shalvi & Weinstein 1990)';
+const SINGULARITY_CRITERION =
+  'mean over 17 frequencies |f| ≤ 0.4·Rs of |det H(f)|/(‖row x‖·‖row y‖) of the equalizer response below the threshold';
+
+/**
+ * The adaptive 2×2 butterfly equalizer: polarization demultiplexing and
+ * linear equalization (DGD, residual dispersion, filtering) of a
+ * T/2-spaced dual-polarization signal, one output symbol per polarization.
+ *
+ * Four complex FIR filters of L taps (L odd) form the butterfly
+ *
+ *   x̂[k] = Σⱼ hxx[j]·x[2k + c − j] + hxy[j]·y[2k + c − j],  c = (L − 1)/2
+ *   ŷ[k] = Σⱼ hyx[j]·x[2k + c − j] + hyy[j]·y[2k + c − j]
+ *
+ * so output symbol k is centred on input sample 2k (the input's even
+ * samples are the symbol instants; samples outside the capture count as
+ * zero). The taps adapt by stochastic gradient, h ← h + μ·e·u*, with the
+ * error e from the rule of the current phase of the schedule:
+ * 1. pre-convergence: CMA (Godard 1980), optionally with the y-filters
+ *    derived from the x-filters by the orthogonality relation (Kikuchi 2011)
+ *    so that the two outputs cannot pick the same polarization;
+ * 2. blind: CMA for QPSK, RDE for 16/64QAM (Fatadin, Ives & Savory 2009), all
+ *    four filters free; singularity checked every 1024 symbols and the
+ *    y-filters re-derived if it is found;
+ * 3. optional DD-LMS with a decision-directed carrier-phase loop; the
+ *    output keeps the carrier phase.
+ * Convergence over the start of the capture: see `convergeOnStart`.
+ *
+ * Input: 'twoSps' blocks (samplesPerSymbol = 2); output: 'symbols' blocks at
+ * half the sample rate, ⌈n/2⌉ symbols for n input samples in all. Block-size
+ * invariant: delay line, sample phase and taps carry across blocks.
+ *
+ * @throws OptionError for any option out of range
+ * @throws BlockError for a block that is not 'twoSps' at 2 samples per symbol
+ * @example
+ * const eq = butterflyEqualizer({ modulation: '16qam', taps: 11 });
+ * const symbols = concatBlocks([eq.process(block), eq.flush() ?? emptyBlock('symbols', 32e9, 1)]);
+ * if (!eq.diagnostics().convergence.converged) throw new Error('equalizer did not converge');
+ */
+export function butterflyEqualizer(options: EqualizerOptions): Stage<'twoSps', 'symbols', EqualizerDiagnostics> {
+  return new ButterflyEqualizer(options);
+}
+
+interface Resolved {
+  modulation: ModulationName;
+  L: number;
+  blindRule: 'cma' | 'rde';
+  mu: { preConvergence: number; cma: number; rde: number; ddLms: number };
+  pre: number;
+  startSymbols: number;
+  passes: number;
+  updateEvery: number;
+  initialTaps: 'centre-spike' | ButterflyTaps;
+  dd: { startSymbol: number; phaseLoop: PhaseLoopGains } | null;
+  orthogonalStart: boolean;
+  restart: boolean;
+  singularThreshold: number;
+  window: number;
+  convergenceThreshold: number;
+  traceEvery: number;
+}
+
+class ButterflyEqualizer implements Stage<'twoSps', 'symbols', EqualizerDiagnostics> {
+  readonly name = NAME;
+  readonly input = 'twoSps' as const;
+  readonly output = 'symbols' as const;
+  private readonly o: Resolved;
+  private readonly L: number;
+  private readonly c: number;
+  private readonly kurtosis: number;
+  private readonly preRule: UpdateRule;
+  private readonly blind: UpdateRule;
+  private readonly dd: DdLmsRule | null;
+  private readonly taps: Float64Array;
+  /** Per-symbol factor of the pre-convergence step size. */
+  private readonly preDecay: number;
+  /** Pre-convergence symbols at the full step size. */
+  private readonly preHold: number;
+  /** Scratch: outputs [x̂re, x̂im, ŷre, ŷim] and errors. */
+  private readonly z = new Float64Array(4);
+  private readonly ex = new Float64Array(2);
+  private readonly ey = new Float64Array(2);
+
+  // Stream state.
+  private collecting!: boolean;
+  private collectX!: Float64Array;
+  private collectY!: Float64Array;
+  private collected!: number;
+  private lineX!: Float64Array;
+  private lineY!: Float64Array;
+  /** Absolute index (input samples) of lineX[0]. */
+  private lineStart!: number;
+  private received!: number;
+  private nextSymbol!: number;
+  private sampleRate!: number;
+
+  // Adaptation state.
+  private adapted!: number;
+  private restarts!: number;
+  private currentRule!: string;
+  private traceCostX!: number[];
+  private traceCostY!: number[];
+  private traceSepX!: number[];
+  private traceSepY!: number[];
+  /** Running sums over the current trace interval: cost x, cost y, |x̂|², |x̂|⁴, |ŷ|², |ŷ|⁴. */
+  private readonly acc = new Float64Array(6);
+  /** |z|² of the last `window` output symbols, per polarization (ring buffers). */
+  private windowX!: Float64Array;
+  private windowY!: Float64Array;
+  private windowFill!: number;
+  private windowPos!: number;
+
+  constructor(options: EqualizerOptions) {
+    this.o = validate(options);
+    const o = this.o;
+    this.L = o.L;
+    this.c = (o.L - 1) / 2;
+    const con = constellation(o.modulation);
+    // E|a|⁴ at unit power is the CMA radius R2.
+    this.kurtosis = con.cmaRadius2;
+    this.preRule = cmaRule(con, o.mu.preConvergence);
+    this.blind = o.blindRule === 'cma' ? cmaRule(con, o.mu.cma) : rdeRule(con, o.mu.rde);
+    this.dd = o.dd ? ddLmsRule(con, o.mu.ddLms, o.dd.phaseLoop) : null;
+    this.taps = new Float64Array(8 * o.L);
+    this.preHold = Math.floor(o.pre / 2);
+    this.preDecay = o.pre > this.preHold ? (o.mu.cma / o.mu.preConvergence) ** (1 / (o.pre - this.preHold)) : 1;
+    this.reset();
+  }
+
+  process(block: FieldBlock<'twoSps'>): FieldBlock<'symbols'> {
+    if (block.domain !== 'twoSps') throw new BlockError(`${NAME}: expected a 'twoSps' block, received '${block.domain}'`);
+    if (block.samplesPerSymbol !== 2) {
+      throw new BlockError(`${NAME}: expected 2 samples per symbol, received ${block.samplesPerSymbol}`);
+    }
+    if (block.y.length !== block.x.length) {
+      throw new BlockError(`${NAME}: x has ${block.x.length >> 1} samples, y has ${block.y.length >> 1}`);
+    }
+    if (!Number.isNaN(this.sampleRate) && block.sampleRate !== this.sampleRate) {
+      throw new BlockError(`${NAME}: sample rate changed mid-stream from ${this.sampleRate} to ${block.sampleRate} Sa/s`);
+    }
+    this.sampleRate = block.sampleRate;
+    if (!this.collecting) return this.stream(block.x, block.y, false);
+    this.collect(block.x, block.y);
+    if (this.collected < 2 * this.o.startSymbols) return this.emptyOutput();
+    return this.startStreaming(false);
+  }
+
+  flush(): FieldBlock<'symbols'> | null {
+    if (Number.isNaN(this.sampleRate)) return null;
+    if (this.collecting) return this.startStreaming(true);
+    return this.stream(complexArray(0), complexArray(0), true);
+  }
+
+  reset(): void {
+    const o = this.o;
+    this.setInitialTaps();
+    this.preRule.reset();
+    this.blind.reset();
+    this.dd?.reset();
+    this.collecting = o.passes > 0;
+    this.collectX = new Float64Array(0);
+    this.collectY = new Float64Array(0);
+    this.collected = 0;
+    this.lineX = new Float64Array(2 * this.c);
+    this.lineY = new Float64Array(2 * this.c);
+    this.lineStart = -this.c;
+    this.received = 0;
+    this.nextSymbol = 0;
+    this.sampleRate = Number.NaN;
+    this.adapted = 0;
+    this.restarts = 0;
+    this.currentRule = 'none';
+    this.traceCostX = [];
+    this.traceCostY = [];
+    this.traceSepX = [];
+    this.traceSepY = [];
+    this.acc.fill(0);
+    this.windowX = new Float64Array(o.window);
+    this.windowY = new Float64Array(o.window);
+    this.windowFill = 0;
+    this.windowPos = 0;
+  }
+
+  diagnostics(): EqualizerDiagnostics {
+    const o = this.o;
+    const L = this.L;
+    const rho = rowOrthogonality(this.taps, L, CHECK_POINTS, CHECK_BAND);
+    const singular = !(rho >= o.singularThreshold);
+    const sepX = this.windowSeparation(this.windowX);
+    const sepY = this.windowSeparation(this.windowY);
+    const converged = !singular && sepX >= o.convergenceThreshold && sepY >= o.convergenceThreshold;
+    const filter = (offset: number) => this.taps.slice(offset * L, offset * L + 2 * L) as ComplexArray;
+    const phases: EqualizerPhase[] = [];
+    if (o.pre > 0) phases.push({ rule: 'cma', fromSymbol: 0, orthogonalY: o.orthogonalStart });
+    phases.push({ rule: this.blind.name, fromSymbol: o.pre, orthogonalY: false });
+    if (o.dd) phases.push({ rule: 'dd-lms', fromSymbol: o.dd.startSymbol, orthogonalY: false });
+    const loopOn = this.dd !== null && o.dd !== null && this.adapted >= o.dd.startSymbol;
+    const symbolRate = this.sampleRate / 2;
+    return {
+      taps: L,
+      symbols: this.nextSymbol,
+      adaptedSymbols: this.adapted,
+      phases,
+      rule: this.currentRule,
+      trace: {
+        every: o.traceEvery,
+        costX: Float64Array.from(this.traceCostX),
+        costY: Float64Array.from(this.traceCostY),
+        separationX: Float64Array.from(this.traceSepX),
+        separationY: Float64Array.from(this.traceSepY),
+      },
+      finalTaps: { xx: filter(FILTER_XX), xy: filter(FILTER_XY), yx: filter(FILTER_YX), yy: filter(FILTER_YY) },
+      convergence: {
+        converged,
+        separationX: sepX,
+        separationY: sepY,
+        window: o.window,
+        threshold: o.convergenceThreshold,
+        criterion: SEPARATION_CRITERION,
+      },
+      singularity: {
+        singular,
+        rowOrthogonality: rho,
+        threshold: o.singularThreshold,
+        restarts: this.restarts,
+        criterion: SINGULARITY_CRITERION,
+      },
+      carrierLoop:
+        loopOn && this.dd
+          ? {
+              phaseX: this.dd.loopState(0).phase,
+              phaseY: this.dd.loopState(1).phase,
+              frequencyHzX: (this.dd.loopState(0).frequency * symbolRate) / (2 * Math.PI),
+              frequencyHzY: (this.dd.loopState(1).frequency * symbolRate) / (2 * Math.PI),
+            }
+          : null,
+    };
+  }
+
+  describe(): StageRecord {
+    const o = this.o;
+    const taps: JsonValue =
+      o.initialTaps === 'centre-spike'
+        ? 'centre-spike'
+        : {
+            xx: Array.from(o.initialTaps.xx),
+            xy: Array.from(o.initialTaps.xy),
+            yx: Array.from(o.initialTaps.yx),
+            yy: Array.from(o.initialTaps.yy),
+          };
+    return {
+      stage: NAME,
+      options: {
+        modulation: o.modulation,
+        taps: o.L,
+        blindRule: o.blindRule,
+        stepSize: { ...o.mu },
+        preConvergenceSymbols: o.pre,
+        convergeOnStart: { symbols: o.startSymbols, passes: o.passes },
+        updateEvery: o.updateEvery,
+        initialTaps: taps,
+        ddLms: o.dd ? { startSymbol: o.dd.startSymbol, phaseLoop: { ...o.dd.phaseLoop } } : null,
+        singularity: { orthogonalStart: o.orthogonalStart, restart: o.restart, threshold: o.singularThreshold },
+        convergence: { window: o.window, threshold: o.convergenceThreshold },
+        traceEvery: o.traceEvery,
+      },
+    };
+  }
+
+  private setInitialTaps(): void {
+    const L = this.L;
+    const t = this.taps;
+    t.fill(0);
+    const init = this.o.initialTaps;
+    if (init === 'centre-spike') {
+      t[FILTER_XX * L + 2 * this.c] = 1;
+      t[FILTER_YY * L + 2 * this.c] = 1;
+    } else {
+      t.set(init.xx, FILTER_XX * L);
+      t.set(init.xy, FILTER_XY * L);
+      t.set(init.yx, FILTER_YX * L);
+      t.set(init.yy, FILTER_YY * L);
+    }
+  }
+
+  private emptyOutput(): FieldBlock<'symbols'> {
+    return fieldBlock('symbols', complexArray(0), complexArray(0), this.sampleRate / 2, 1);
+  }
+
+  private collect(x: ComplexArray, y: ComplexArray): void {
+    const need = 2 * (this.collected + (x.length >> 1));
+    if (need > this.collectX.length) {
+      const size = Math.max(need, 2 * this.collectX.length);
+      const nx = new Float64Array(size);
+      const ny = new Float64Array(size);
+      nx.set(this.collectX.subarray(0, 2 * this.collected));
+      ny.set(this.collectY.subarray(0, 2 * this.collected));
+      this.collectX = nx;
+      this.collectY = ny;
+    }
+    this.collectX.set(x, 2 * this.collected);
+    this.collectY.set(y, 2 * this.collected);
+    this.collected += x.length >> 1;
+  }
+
+  /** Adapts over the buffered start of the capture, then streams it from its first sample. */
+  private startStreaming(final: boolean): FieldBlock<'symbols'> {
+    const n = Math.min(this.collected, 2 * this.o.startSymbols);
+    const c = this.c;
+    // The start with c zeros of history before it, as the stream will see it.
+    const ux = new Float64Array(2 * (c + n));
+    const uy = new Float64Array(2 * (c + n));
+    ux.set(this.collectX.subarray(0, 2 * n), 2 * c);
+    uy.set(this.collectY.subarray(0, 2 * n), 2 * c);
+    // Symbols whose whole window lies inside the buffer: 2k + c ≤ n − 1.
+    const count = n - 1 - c >= 0 ? Math.floor((n - 1 - c) / 2) + 1 : 0;
+    for (let p = 0; p < this.o.passes; p++) {
+      // Each pass and the output run start over from the capture's first symbol.
+      if (p > 0) this.rewindCarrier(count);
+      this.run(ux, uy, 2 * c, count, null, null);
+    }
+    if (this.o.passes > 0) this.rewindCarrier(count);
+    this.collecting = false;
+    const x = this.collectX.subarray(0, 2 * this.collected) as ComplexArray;
+    const y = this.collectY.subarray(0, 2 * this.collected) as ComplexArray;
+    const out = this.stream(x, y, final);
+    this.collectX = new Float64Array(0);
+    this.collectY = new Float64Array(0);
+    this.collected = 0;
+    return out;
+  }
+
+  /** Filters (and adapts on) every symbol whose window is complete; `final` pads the end with zeros. */
+  private stream(x: ComplexArray, y: ComplexArray, final: boolean): FieldBlock<'symbols'> {
+    const c = this.c;
+    const nNew = x.length >> 1;
+    const pad = final ? c : 0;
+    const lineLen = this.lineX.length >> 1;
+    const uLen = lineLen + nNew + pad;
+    const ux = new Float64Array(2 * uLen);
+    const uy = new Float64Array(2 * uLen);
+    ux.set(this.lineX, 0);
+    uy.set(this.lineY, 0);
+    ux.set(x, 2 * lineLen);
+    uy.set(y, 2 * lineLen);
+    this.received += nNew;
+    // Last symbol: its window must be in the buffer, and (at the end) its centre a real sample.
+    let last = Math.floor((this.lineStart + uLen - 1 - c) / 2);
+    if (final) last = Math.min(last, Math.floor((this.received - 1) / 2));
+    const count = Math.max(0, last - this.nextSymbol + 1);
+    const outX = complexArray(count);
+    const outY = complexArray(count);
+    this.run(ux, uy, 2 * this.nextSymbol + c - this.lineStart, count, outX, outY);
+    this.nextSymbol += count;
+    // Keep the samples the next symbol's window still needs.
+    const keepFrom = Math.max(0, 2 * this.nextSymbol - c - this.lineStart);
+    this.lineX = ux.slice(2 * keepFrom, 2 * (lineLen + nNew));
+    this.lineY = uy.slice(2 * keepFrom, 2 * (lineLen + nNew));
+    this.lineStart += keepFrom;
+    return fieldBlock('symbols', outX, outY, this.sampleRate / 2, 1);
+  }
+
+  /**
+   * The hot loop: `count` symbols, the first with its newest window sample at
+   * index `newest0` of the delay lines, the next ones 2 samples later. Writes
+   * the outputs when `outX`/`outY` are given (the output run), adapts always.
+   */
+  private run(
+    ux: Float64Array,
+    uy: Float64Array,
+    newest0: number,
+    count: number,
+    outX: Float64Array | null,
+    outY: Float64Array | null,
+  ): void {
+    const o = this.o;
+    const L = this.L;
+    const taps = this.taps;
+    const z = this.z;
+    const ex = this.ex;
+    const ey = this.ey;
+    const acc = this.acc;
+    const dd = this.dd;
+    const ddStart = o.dd ? o.dd.startSymbol : Number.POSITIVE_INFINITY;
+    for (let s = 0; s < count; s++) {
+      const newest = newest0 + 2 * s;
+      butterflyOutput(taps, L, ux, uy, newest, z);
+      const xr = z[0];
+      const xi = z[1];
+      const yr = z[2];
+      const yi = z[3];
+      const a = this.adapted;
+      const pre = a < o.pre;
+      const rule = pre ? this.preRule : a >= ddStart && dd ? dd : this.blind;
+      const costX = rule.error(xr, xi, 0, ex);
+      const costY = rule.error(yr, yi, 1, ey);
+      if (outX && outY) {
+        outX[2 * s] = xr;
+        outX[2 * s + 1] = xi;
+        outY[2 * s] = yr;
+        outY[2 * s + 1] = yi;
+        const p = this.windowPos;
+        this.windowX[p] = xr * xr + xi * xi;
+        this.windowY[p] = yr * yr + yi * yi;
+        this.windowPos = p + 1 === o.window ? 0 : p + 1;
+        if (this.windowFill < o.window) this.windowFill++;
+      }
+      if (dd && a < ddStart && a >= ddStart - ACQUIRE_SYMBOLS) {
+        dd.observe(xr, xi, 0);
+        dd.observe(yr, yi, 1);
+      }
+      if (a % o.updateEvery === 0) {
+        // Pre-convergence holds μ_pre over its first half (fast separation), then anneals it
+        // geometrically to μ_cma over the second half (a quiet start for the rule after it).
+        const mu = pre
+          ? a < this.preHold
+            ? o.mu.preConvergence
+            : o.mu.preConvergence * this.preDecay ** (a - this.preHold)
+          : rule.stepSize;
+        updateRow(taps, L, ux, uy, newest, 0, ex[0], ex[1], mu);
+        if (pre && o.orthogonalStart) deriveOrthogonalRow(taps, L);
+        else updateRow(taps, L, ux, uy, newest, 1, ey[0], ey[1], mu);
+      }
+      const px = xr * xr + xi * xi;
+      const py = yr * yr + yi * yi;
+      acc[0] += costX;
+      acc[1] += costY;
+      acc[2] += px;
+      acc[3] += px * px;
+      acc[4] += py;
+      acc[5] += py * py;
+      const next = a + 1;
+      this.adapted = next;
+      if (next % o.traceEvery === 0) this.tracePoint();
+      if (dd && next === ddStart) dd.acquire();
+      if (o.restart && next >= o.pre && (next - o.pre) % CHECK_EVERY === 0) this.checkSingularity();
+    }
+    if (count > 0) {
+      const a = this.adapted - 1;
+      this.currentRule = a < o.pre ? 'cma' : a >= ddStart ? 'dd-lms' : this.blind.name;
+    }
+  }
+
+  /** Carries the DD-LMS loop back to the capture's start if it is running. */
+  private rewindCarrier(symbols: number): void {
+    if (this.dd && this.o.dd && this.adapted > this.o.dd.startSymbol) this.dd.rewind(symbols);
+  }
+
+  private tracePoint(): void {
+    const n = this.o.traceEvery;
+    const acc = this.acc;
+    this.traceCostX.push(acc[0] / n);
+    this.traceCostY.push(acc[1] / n);
+    this.traceSepX.push(separationIndex(acc[2] / n, acc[3] / n, this.kurtosis));
+    this.traceSepY.push(separationIndex(acc[4] / n, acc[5] / n, this.kurtosis));
+    acc.fill(0);
+  }
+
+  private checkSingularity(): void {
+    const rho = rowOrthogonality(this.taps, this.L, CHECK_POINTS, CHECK_BAND);
+    if (rho < this.o.singularThreshold) {
+      deriveOrthogonalRow(this.taps, this.L);
+      this.restarts++;
+    }
+  }
+
+  private windowSeparation(w: Float64Array): number {
+    const n = this.windowFill;
+    if (n === 0) return 0;
+    let m2 = 0;
+    let m4 = 0;
+    for (let i = 0; i < n; i++) {
+      m2 += w[i];
+      m4 += w[i] * w[i];
+    }
+    return separationIndex(m2 / n, m4 / n, this.kurtosis);
+  }
+}
+
+function validate(opt: EqualizerOptions): Resolved {
+  const fail = (option: string, expected: string, received: unknown): never => {
+    throw new OptionError(NAME, option, expected, received);
+  };
+  const integer = (option: string, v: unknown, def: number, min: number, max = Number.MAX_SAFE_INTEGER): number => {
+    if (v === undefined) return def;
+    if (typeof v !== 'number' || !Number.isInteger(v) || v < min || v > max) {
+      fail(option, max === Number.MAX_SAFE_INTEGER ? `an integer ≥ ${min}` : `an integer from ${min} to ${max}`, v);
+    }
+    return v as number;
+  };
+  const positive = (option: string, v: unknown, def: number): number => {
+    if (v === undefined) return def;
+    if (typeof v !== 'number' || !Number.isFinite(v) || !(v > 0)) fail(option, 'a finite number > 0', v);
+    return v as number;
+  };
+  const fraction = (option: string, v: unknown, def: number): number => {
+    if (v === undefined) return def;
+    if (typeof v !== 'number' || !(v > 0 && v < 1)) fail(option, 'a number in (0, 1)', v);
+    return v as number;
+  };
+  if (opt === null || typeof opt !== 'object') fail('options', 'an options object', opt);
+  if (!MODULATIONS.includes(opt.modulation)) fail('modulation', `one of ${MODULATIONS.join(', ')}`, opt.modulation);
+  const L = integer('taps', opt.taps, 11, 1, 201);
+  if (L % 2 === 0) fail('taps', 'an odd number of taps', L);
+  const blindRule = opt.blindRule ?? (opt.modulation === 'qpsk' ? 'cma' : 'rde');
+  if (blindRule !== 'cma' && blindRule !== 'rde') fail('blindRule', "'cma' or 'rde'", blindRule);
+  const mu = {
+    preConvergence: positive('stepSize.preConvergence', opt.stepSize?.preConvergence, 3e-3),
+    cma: positive('stepSize.cma', opt.stepSize?.cma, opt.modulation === '64qam' ? 1e-4 : 3e-4),
+    rde: positive('stepSize.rde', opt.stepSize?.rde, opt.modulation === '64qam' ? 3e-5 : 1e-4),
+    ddLms: positive('stepSize.ddLms', opt.stepSize?.ddLms, 3e-4),
+  };
+  const pre = integer('preConvergenceSymbols', opt.preConvergenceSymbols, 8192, 0);
+  const start = opt.convergeOnStart ?? { symbols: 8192, passes: 2 };
+  const startSymbols = integer('convergeOnStart.symbols', start.symbols, 8192, 1);
+  const passes = integer('convergeOnStart.passes', start.passes, 2, 0, 100);
+  const updateEvery = integer('updateEvery', opt.updateEvery, 1, 1);
+  const initialTaps = opt.initialTaps ?? 'centre-spike';
+  if (initialTaps !== 'centre-spike') {
+    if (typeof initialTaps !== 'object') fail('initialTaps', "'centre-spike' or { xx, xy, yx, yy }", initialTaps);
+    for (const k of ['xx', 'xy', 'yx', 'yy'] as const) {
+      const f = initialTaps[k];
+      if (!(f instanceof Float64Array) || f.length !== 2 * L) {
+        fail(`initialTaps.${k}`, `${L} complex taps (a Float64Array of ${2 * L} numbers)`, f?.length ?? f);
+      }
+      for (const v of f) if (!Number.isFinite(v)) fail(`initialTaps.${k}`, 'finite values', v);
+    }
+  }
+  let dd: Resolved['dd'] = null;
+  if (opt.ddLms !== undefined) {
+    const startSymbol = integer('ddLms.startSymbol', opt.ddLms.startSymbol, 0, pre);
+    const loop = opt.ddLms.phaseLoop ?? DEFAULT_PHASE_LOOP;
+    const kp = loop.proportional;
+    const ki = loop.integral;
+    if (typeof kp !== 'number' || !(kp > 0 && kp < 1)) fail('ddLms.phaseLoop.proportional', 'a gain in (0, 1)', kp);
+    if (typeof ki !== 'number' || !(ki >= 0 && ki < kp)) fail('ddLms.phaseLoop.integral', 'a gain in [0, proportional)', ki);
+    dd = { startSymbol, phaseLoop: { proportional: kp, integral: ki } };
+  }
+  const sing = opt.singularity ?? {};
+  const orthogonalStart = sing.orthogonalStart ?? false;
+  const restart = sing.restart ?? true;
+  if (typeof orthogonalStart !== 'boolean') fail('singularity.orthogonalStart', 'true or false', orthogonalStart);
+  if (typeof restart !== 'boolean') fail('singularity.restart', 'true or false', restart);
+  const singularThreshold = fraction('singularity.threshold', sing.threshold, 0.5);
+  const conv = opt.convergence ?? {};
+  const window = integer('convergence.window', conv.window, 2048, 16);
+  const convergenceThreshold = fraction('convergence.threshold', conv.threshold, 0.7);
+  const traceEvery = integer('traceEvery', opt.traceEvery, 256, 1);
+  return {
+    modulation: opt.modulation,
+    L,
+    blindRule,
+    mu,
+    pre,
+    startSymbols,
+    passes,
+    updateEvery,
+    initialTaps,
+    dd,
+    orthogonalStart,
+    restart,
+    singularThreshold,
+    window,
+    convergenceThreshold,
+    traceEvery,
+  };
+}
