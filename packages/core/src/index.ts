@@ -11,6 +11,7 @@ export {
   blindPhaseSearchPhase,
   CoarseFinePhaseKernel,
 } from './carrier/blind-phase-search.js';
+export * from './carrier/coarse-frequency-stage.js';
 export type { CycleSlip, SlipMethod } from './carrier/cycle-slip.js';
 export { estimateOffsetDifferential } from './carrier/differential-frequency.js';
 export {
@@ -97,6 +98,7 @@ export * from './pipeline/pipe.js';
 export * from './pipeline/stage.js';
 export * from './prbs/prbs.js';
 export * from './random/rng.js';
+export * from './receiver/default-chain.js';
 export { InterpolationKernel, type LowpassSpec } from './resample/interpolation-kernel.js';
 export {
   type MatchedFilterDiagnostics,

@@ -23,6 +23,7 @@ export * from './measure/measure.js';
 export * from './quality/evm.js';
 export * from './quality/gain.js';
 export * from './quality/snr.js';
+export * from './receiver/analyze.js';
 // Synchronization with the reference.
 export * from './sync/synchronize.js';
 // Theory (AWGN).

@@ -1,0 +1,311 @@
+import {
+  type ChannelBlock,
+  type ComplexArray,
+  type CycleSlip,
+  constellation,
+  cycleSlipsAgainstReference,
+  type DualPol,
+  defaultReceiver,
+  type FieldBlock,
+  LIBRARY_VERSION,
+  OptionError,
+  type ReceiverChain,
+  type ReceiverDiagnostics,
+  type ReceiverSettings,
+  Sha256,
+  type StageRecord,
+} from '@intradyne/core';
+import { type Measurement, measure, ReferenceNotFoundError } from '../measure/measure.js';
+import { snrForBer } from '../theory/qam-ber.js';
+
+/** Options of {@link analyzeCapture}. */
+export interface AnalyzeOptions {
+  /** Leading recovered symbols left out of the figures (default 2048: clock and carrier loops settling). */
+  readonly skipSymbols?: number;
+  /** Largest |measured − expected| normalized fourth moment accepted for the stated modulation (default 0.1). */
+  readonly modulationTolerance?: number;
+  /** Keep the recovered symbols in the result (default false). */
+  readonly keepSymbols?: boolean;
+}
+
+/** Why an analysis failed; no figure is valid then. */
+export interface AnalysisFailure {
+  /** Which check failed. */
+  readonly check: 'equalizer' | 'reference' | 'modulation' | 'length';
+  readonly reason: string;
+}
+
+/** Cycle slips found against the synchronized reference, per polarization. */
+export interface SlipReport {
+  readonly count: number;
+  readonly x: readonly CycleSlip[];
+  readonly y: readonly CycleSlip[];
+}
+
+/**
+ * Does the data look like the stated modulation? The normalized fourth
+ * moment K = E|z|⁴/(E|z|²)² of unit-power symbols a plus circular Gaussian
+ * noise of variance σ² is (k + 4σ² + 2σ⁴)/(1 + σ²)², k = E|a|⁴ of the
+ * constellation (1 for QPSK, 1.32 for 16QAM, 1.381 for 64QAM): a QPSK
+ * stream analysed as 16QAM, whose reference sits on the corner points,
+ * shows K near 1 instead of 1.32.
+ */
+export interface ModulationFit {
+  readonly measured: number;
+  readonly expected: number;
+  readonly tolerance: number;
+  readonly fits: boolean;
+}
+
+/** Everything needed to run the same analysis again. */
+export interface ReproducibilityRecord {
+  readonly library: string;
+  readonly version: string;
+  /** The chain with every option of every stage. */
+  readonly pipeline: StageRecord;
+  readonly analysis: { readonly skipSymbols: number; readonly modulationTolerance: number };
+  /** SHA-256 of the input samples, rows (xi, xq, yi, yq) as little-endian float64. */
+  readonly inputSha256: string;
+  /** Input samples per channel. */
+  readonly samples: number;
+}
+
+/** The result of {@link analyzeCapture}. */
+export interface AnalysisResult {
+  /** True when every check passed and `measurement` holds valid figures. */
+  readonly ok: boolean;
+  readonly failure: AnalysisFailure | null;
+  /** BER, SER, EVM, SNR, Q, GMI, NGMI, MI per polarization and total; null when the analysis failed. */
+  readonly measurement: Measurement | null;
+  /** Carrier offset from the local oscillator, Hz (x rotates as exp(+j2π·f·t)); NaN when not estimated. */
+  readonly freqOffsetHz: number;
+  /** Slips against the reference (empty when the reference was not found). */
+  readonly cycleSlips: SlipReport;
+  /** Combined laser linewidth estimated from the recovered phase, Hz (NaN when unknown). */
+  readonly linewidthHz: number;
+  /** Measured SNR minus the SNR theory needs for the measured BER, dB; null without errors or when failed. */
+  readonly implementationPenaltyDb: number | null;
+  /** Es/N0 that theory needs for the measured BER, dB (Cho & Yoon 2002); null when not defined. */
+  readonly theorySnrDb: number | null;
+  readonly modulationFit: ModulationFit | null;
+  /** What every stage of the chain reported, by slot. */
+  readonly diagnostics: ReceiverDiagnostics;
+  /** Recovered symbols per polarization. */
+  readonly symbols: number;
+  /** The recovered symbols, when `keepSymbols` was set. */
+  readonly recovered: DualPol | null;
+  readonly record: ReproducibilityRecord;
+}
+
+/**
+ * The default receiver, from a capture's four channels to its figures.
+ *
+ * Streams `blocks` through {@link defaultReceiver} (bounded memory: only the
+ * recovered symbols, one complex value per symbol and polarization, are
+ * kept), then measures them against the reference ({@link measure}) and
+ * checks the result: the equalizer must have converged (its criterion is in
+ * its diagnostics), the reference must be found, and the data must fit the
+ * stated modulation ({@link ModulationFit}). A failed check gives
+ * `ok: false` with the reason and no figures.
+ *
+ * The result does not depend on how the capture is cut into blocks.
+ * @param blocks the capture, in blocks of any sizes (or one block)
+ * @param settings what the descriptor says, and chain options
+ * @param reference transmitted symbols, any scale; periodic when shorter than the capture
+ * @throws OptionError for bad settings or options; what a stage throws for malformed blocks
+ * @example const r = analyzeCapture([block], { modulation: '16qam', symbolRate: 32e9, sampleRate: 80e9 }, ref); r.ok && r.measurement.ber;
+ */
+export function analyzeCapture(
+  blocks: Iterable<ChannelBlock>,
+  settings: ReceiverSettings,
+  reference: DualPol,
+  options: AnalyzeOptions = {},
+): AnalysisResult {
+  const skipSymbols = options.skipSymbols ?? 2048;
+  if (!Number.isInteger(skipSymbols) || skipSymbols < 0)
+    throw new OptionError('analyze', 'skipSymbols', 'an integer ≥ 0', skipSymbols);
+  const tolerance = options.modulationTolerance ?? 0.1;
+  if (!(tolerance > 0)) throw new OptionError('analyze', 'modulationTolerance', 'a positive number', tolerance);
+  const chain = defaultReceiver(settings);
+  const hasher = new Sha256();
+  const out = new SymbolCollector();
+  let samples = 0;
+  for (const block of blocks) {
+    hashRows(hasher, block);
+    samples += block.xi.length;
+    out.add(chain.process(block));
+  }
+  const tail = chain.flush();
+  if (tail) out.add(tail);
+  const recovered = out.result();
+  const diagnostics = chain.diagnostics();
+  const record: ReproducibilityRecord = {
+    library: 'intradyne',
+    version: LIBRARY_VERSION,
+    pipeline: chain.describe(),
+    analysis: { skipSymbols, modulationTolerance: tolerance },
+    inputSha256: hasher.hex(),
+    samples,
+  };
+  const symbols = recovered.x.length >> 1;
+  const base = {
+    // The coarse shift before the matched filter plus the residual found after the equalizer.
+    freqOffsetHz: sumKnown(
+      numberField(diagnostics.coarseFrequency, 'freqOffsetHz'),
+      numberField(diagnostics.frequency, 'freqOffsetHz'),
+    ),
+    linewidthHz: numberField(diagnostics.phase, 'linewidthHz'),
+    diagnostics,
+    symbols,
+    recovered: options.keepSymbols ? recovered : null,
+    record,
+  };
+  const failed = (failure: AnalysisFailure, fit: ModulationFit | null = null): AnalysisResult => ({
+    ok: false,
+    failure,
+    measurement: null,
+    cycleSlips: { count: 0, x: [], y: [] },
+    implementationPenaltyDb: null,
+    theorySnrDb: null,
+    modulationFit: fit,
+    ...base,
+  });
+
+  const eq = equalizerVerdict(chain);
+  if (eq) return failed(eq);
+  if (symbols <= skipSymbols + 128) {
+    return failed({ check: 'length', reason: `${symbols} symbols recovered: too few to measure after skipping ${skipSymbols}` });
+  }
+  let m: Measurement;
+  try {
+    m = measure(recovered, reference, settings.modulation, { skipSymbols, symbolRate: settings.symbolRate, keepAligned: true });
+  } catch (e) {
+    if (e instanceof ReferenceNotFoundError) return failed({ check: 'reference', reason: e.message });
+    if (e instanceof RangeError && /reference/.test(e.message)) return failed({ check: 'reference', reason: e.message });
+    throw e;
+  }
+  const fit = modulationFit(m, settings.modulation, tolerance);
+  if (!fit.fits) {
+    return failed(
+      {
+        check: 'modulation',
+        reason:
+          `the recovered symbols do not fit ${settings.modulation}: normalized fourth moment ${fit.measured.toFixed(3)}, ` +
+          `${fit.expected.toFixed(3)} expected at the measured SNR (tolerance ${tolerance})`,
+      },
+      fit,
+    );
+  }
+  const aligned = m.aligned!;
+  const slips = {
+    x: cycleSlipsAgainstReference(aligned.x.received, aligned.x.reference),
+    y: cycleSlipsAgainstReference(aligned.y.received, aligned.y.reference),
+  };
+  const theory = m.bitErrors > 0 && m.ber < 0.5 ? snrForBer(settings.modulation, m.ber) : null;
+  return {
+    ok: true,
+    failure: null,
+    measurement: { ...m, aligned: null },
+    cycleSlips: { count: slips.x.length + slips.y.length, ...slips },
+    implementationPenaltyDb: theory === null || !Number.isFinite(m.snrDb) ? null : m.snrDb - theory,
+    theorySnrDb: theory,
+    modulationFit: fit,
+    ...base,
+  };
+}
+
+function equalizerVerdict(chain: ReceiverChain): AnalysisFailure | null {
+  const d = chain.diagnostics().equalizer as {
+    convergence?: { converged: boolean; separationX: number; separationY: number; threshold: number; criterion: string };
+    singularity?: { singular: boolean; rowOrthogonality: number; criterion: string };
+  } | null;
+  if (!d?.convergence) return null; // a replaced equalizer that reports no verdict
+  if (d.singularity?.singular) {
+    return {
+      check: 'equalizer',
+      reason: `the equalizer's outputs converged to the same polarization (row orthogonality ${d.singularity.rowOrthogonality.toFixed(3)}; ${d.singularity.criterion})`,
+    };
+  }
+  if (!d.convergence.converged) {
+    return {
+      check: 'equalizer',
+      reason:
+        `the equalizer did not converge: separation index x ${d.convergence.separationX.toFixed(3)}, ` +
+        `y ${d.convergence.separationY.toFixed(3)}, below ${d.convergence.threshold} (${d.convergence.criterion})`,
+    };
+  }
+  return null;
+}
+
+function modulationFit(m: Measurement, modulation: Measurement['modulation'], tolerance: number): ModulationFit {
+  const k = constellation(modulation).cmaRadius2; // E|a|⁴ at unit power
+  let measured = 0;
+  let expected = 0;
+  for (const p of ['x', 'y'] as const) {
+    const z = m.aligned![p].received;
+    let m2 = 0;
+    let m4 = 0;
+    for (let i = 0; i < z.length; i += 2) {
+      const r2 = z[i] * z[i] + z[i + 1] * z[i + 1];
+      m2 += r2;
+      m4 += r2 * r2;
+    }
+    const n = z.length >> 1;
+    measured += m4 / n / (m2 / n) ** 2 / 2;
+    const s2 = m.perPol[p].noiseVariance;
+    expected += (k + 4 * s2 + 2 * s2 * s2) / (1 + s2) ** 2 / 2;
+  }
+  return { measured, expected, tolerance, fits: Math.abs(measured - expected) <= tolerance };
+}
+
+function sumKnown(a: number, b: number): number {
+  if (Number.isNaN(a)) return b;
+  if (Number.isNaN(b)) return a;
+  return a + b;
+}
+
+function numberField(d: unknown, key: string): number {
+  const v = (d as Record<string, unknown> | null)?.[key];
+  return typeof v === 'number' ? v : Number.NaN;
+}
+
+/** Hashes a block as rows (xi, xq, yi, yq), so that the digest does not depend on block boundaries. */
+function hashRows(h: Sha256, b: ChannelBlock): void {
+  const n = b.xi.length;
+  const rows = new Float64Array(4 * n);
+  for (let k = 0; k < n; k++) {
+    rows[4 * k] = b.xi[k];
+    rows[4 * k + 1] = b.xq[k];
+    rows[4 * k + 2] = b.yi[k];
+    rows[4 * k + 3] = b.yq[k];
+  }
+  h.updateFloat64(rows);
+}
+
+/** Appends symbol blocks into growing arrays (amortized doubling). */
+class SymbolCollector {
+  private x = new Float64Array(1 << 14);
+  private y = new Float64Array(1 << 14);
+  private used = 0;
+
+  add(b: FieldBlock<'symbols'>): void {
+    const need = this.used + b.x.length;
+    if (need > this.x.length) {
+      let size = this.x.length;
+      while (size < need) size *= 2;
+      const nx = new Float64Array(size);
+      const ny = new Float64Array(size);
+      nx.set(this.x.subarray(0, this.used));
+      ny.set(this.y.subarray(0, this.used));
+      this.x = nx;
+      this.y = ny;
+    }
+    this.x.set(b.x, this.used);
+    this.y.set(b.y, this.used);
+    this.used = need;
+  }
+
+  result(): DualPol {
+    return { x: this.x.slice(0, this.used) as ComplexArray, y: this.y.slice(0, this.used) as ComplexArray };
+  }
+}
