@@ -1,11 +1,15 @@
-import { type FieldBlock, fieldBlock } from '../pipeline/blocks.js';
+import { type BlockOf, type FieldBlock, fieldBlock } from '../pipeline/blocks.js';
 import { BlockError, OptionError, type Stage, type StageRecord } from '../pipeline/stage.js';
 import { type ComplexArray, concatComplex } from '../signal/complex.js';
 import { estimateOffsetPeriodogram } from './fourth-power-periodogram.js';
 import { removeFrequencyOffset } from './frequency-removal.js';
 
 /** Options of {@link coarseFrequencyShift}. */
-export interface CoarseFrequencyOptions {
+type WaveformDomain = 'field' | 'twoSps';
+
+export interface CoarseFrequencyOptions<D extends WaveformDomain = 'twoSps'> {
+  /** Domain of the waveform: 'twoSps' (default) or 'field' (scope rate). */
+  readonly domain?: D;
   /** Leading samples per polarization the estimate is made on (held back until then), at least 1,024 (default 65,536). */
   readonly estimateSamples?: number;
 }
@@ -21,13 +25,14 @@ export interface CoarseFrequencyDiagnostics {
 const NAME = 'coarse-frequency';
 
 /**
- * Coarse frequency-offset removal on the field at the scope rate, before the
- * matched filter: a matched filter centred on the local oscillator cuts one
+ * Coarse frequency-offset removal on a waveform (2 samples per symbol by
+ * default, or the field at the scope rate), before the matched filter and
+ * after dispersion compensation (dispersion smears the fourth-power tone): a matched filter centred on the local oscillator cuts one
  * band edge of a signal offset by Δf and lets in noise at the other (at
  * 32 GBd with roll-off 0.1, a 2 GHz offset costs about 0.7 dB of SNR), so
  * the offset is taken out first. The estimate is the fourth-power
  * periodogram (Selmi, Jaouën, Ciblat, ECOC 2009) of the oversampled field,
- * whose fourth power still holds a tone at 4Δf; range |Δf| < fs/8. The
+ * whose fourth power still holds a tone at 4Δf; range |Δf| < fs/8 (±8 GHz at 64 GSa/s). The
  * symbol-rate frequency stage after the equalizer then removes what is left.
  *
  * Block-size invariant: the estimate uses the first `estimateSamples`
@@ -35,43 +40,47 @@ const NAME = 'coarse-frequency';
  * @throws OptionError for a span below 1,024 samples
  * @example const shift = coarseFrequencyShift({ estimateSamples: 32768 });
  */
-export function coarseFrequencyShift(options: CoarseFrequencyOptions = {}): Stage<'field', 'field', CoarseFrequencyDiagnostics> {
-  return new CoarseFrequency(options);
+export function coarseFrequencyShift<D extends WaveformDomain = 'twoSps'>(
+  options: CoarseFrequencyOptions<D> = {},
+): Stage<D, D, CoarseFrequencyDiagnostics> {
+  return new CoarseFrequency<D>(options);
 }
 
-class CoarseFrequency implements Stage<'field', 'field', CoarseFrequencyDiagnostics> {
+class CoarseFrequency<D extends WaveformDomain> implements Stage<D, D, CoarseFrequencyDiagnostics> {
   readonly name = NAME;
-  readonly input = 'field' as const;
-  readonly output = 'field' as const;
+  readonly input: D;
+  readonly output: D;
   private readonly span: number;
-  private held: FieldBlock<'field'>[] = [];
+  private held: FieldBlock[] = [];
   private heldSamples = 0;
   private estimate = Number.NaN;
   private delivered = 0;
 
-  constructor(options: CoarseFrequencyOptions) {
+  constructor(options: CoarseFrequencyOptions<D>) {
+    this.input = (options.domain ?? 'twoSps') as D;
+    this.output = this.input;
+    if (this.input !== 'twoSps' && this.input !== 'field')
+      throw new OptionError(NAME, 'domain', "'twoSps' or 'field'", this.input);
     const span = options.estimateSamples ?? 65_536;
     if (!Number.isInteger(span) || span < 1024) throw new OptionError(NAME, 'estimateSamples', 'an integer ≥ 1024', span);
     this.span = span;
   }
 
-  process(block: FieldBlock<'field'>): FieldBlock<'field'> {
-    if (block.domain !== 'field') throw new BlockError(`${NAME}: expected a 'field' block, received '${block.domain}'`);
+  process(input: BlockOf<D>): BlockOf<D> {
+    const block = input as FieldBlock;
+    if (block.domain !== this.input)
+      throw new BlockError(`${NAME}: expected a '${this.input}' block, received '${block.domain}'`);
     if (!Number.isNaN(this.estimate)) return this.shift(block.x.slice() as ComplexArray, block.y.slice() as ComplexArray, block);
     this.held.push(block);
     this.heldSamples += block.x.length >> 1;
-    if (this.heldSamples < this.span)
-      return fieldBlock(
-        'field',
-        block.x.subarray(0, 0) as ComplexArray,
-        block.y.subarray(0, 0) as ComplexArray,
-        block.sampleRate,
-        block.samplesPerSymbol,
-      );
+    if (this.heldSamples < this.span) {
+      const none = block.x.subarray(0, 0) as ComplexArray;
+      return fieldBlock(this.output as WaveformDomain, none, none, block.sampleRate, block.samplesPerSymbol) as BlockOf<D>;
+    }
     return this.release();
   }
 
-  flush(): FieldBlock<'field'> | null {
+  flush(): BlockOf<D> | null {
     return this.held.length > 0 ? this.release() : null;
   }
 
@@ -87,10 +96,10 @@ class CoarseFrequency implements Stage<'field', 'field', CoarseFrequencyDiagnost
   }
 
   describe(): StageRecord {
-    return { stage: NAME, options: { estimateSamples: this.span } };
+    return { stage: NAME, options: { domain: this.input, estimateSamples: this.span } };
   }
 
-  private release(): FieldBlock<'field'> {
+  private release(): BlockOf<D> {
     const first = this.held[0];
     const x = concatComplex(this.held.map((b) => b.x));
     const y = concatComplex(this.held.map((b) => b.y));
@@ -105,10 +114,10 @@ class CoarseFrequency implements Stage<'field', 'field', CoarseFrequencyDiagnost
   }
 
   // z[n] ← z[n]·e^(−j2π·Δf·n/fs), n counted from the start of the stream.
-  private shift(x: ComplexArray, y: ComplexArray, like: FieldBlock<'field'>): FieldBlock<'field'> {
+  private shift(x: ComplexArray, y: ComplexArray, like: FieldBlock): BlockOf<D> {
     removeFrequencyOffset(x, this.estimate, like.sampleRate, 0, this.delivered);
     removeFrequencyOffset(y, this.estimate, like.sampleRate, 0, this.delivered);
     this.delivered += x.length >> 1;
-    return fieldBlock('field', x, y, like.sampleRate, like.samplesPerSymbol);
+    return fieldBlock(this.output as WaveformDomain, x, y, like.sampleRate, like.samplesPerSymbol) as BlockOf<D>;
   }
 }
