@@ -32,6 +32,8 @@ export interface CaptureDescriptor {
   readonly reference: string;
   readonly rollOff: number;
   readonly dispersionPsPerNm?: number;
+  /** Receiver skew per channel from its calibration, ps (each channel is advanced by its value). */
+  readonly skewPs?: Partial<Record<'xi' | 'xq' | 'yi' | 'yq', number>>;
   readonly columns?: Partial<Record<CaptureColumn, string>>;
   readonly notes?: string;
 }
@@ -47,6 +49,7 @@ export const DESCRIPTOR_FIELDS = [
   'reference',
   'rollOff',
   'dispersionPsPerNm',
+  'skewPs',
   'columns',
   'notes',
   'simulation',
@@ -154,6 +157,21 @@ export function validateDescriptor(
   }
   const d = value('dispersionPsPerNm');
   if (d !== undefined && (typeof d !== 'number' || !Number.isFinite(d))) fail('dispersionPsPerNm', 'a finite number of ps/nm');
+  const sk = value('skewPs');
+  if (sk !== undefined) {
+    if (typeof sk !== 'object' || sk === null || Array.isArray(sk))
+      fail('skewPs', 'an object such as {"xq": 3.2} (ps per channel)');
+    for (const [k, v] of Object.entries(sk as object)) {
+      if (!['xi', 'xq', 'yi', 'yq'].includes(k) || typeof v !== 'number' || !Number.isFinite(v) || Math.abs(v) > 1000) {
+        throw new InputError(
+          where('skewPs'),
+          `field 'skewPs'`,
+          'keys among xi, xq, yi, yq with skews in ps (finite, within ±1000)',
+          `${quoteText(k)}: ${describe(v)}`,
+        );
+      }
+    }
+  }
   const c = value('columns');
   let columns: Partial<Record<CaptureColumn, string>> | undefined;
   if (c !== undefined) {
@@ -182,6 +200,7 @@ export function validateDescriptor(
     reference: r as string,
     rollOff,
     ...(d !== undefined ? { dispersionPsPerNm: d as number } : {}),
+    ...(sk !== undefined ? { skewPs: sk as Partial<Record<'xi' | 'xq' | 'yi' | 'yq', number>> } : {}),
     ...(columns ? { columns } : {}),
     ...(n !== undefined ? { notes: n as string } : {}),
   };

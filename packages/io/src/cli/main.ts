@@ -2,6 +2,7 @@
 import { LIBRARY_VERSION, OptionError } from '@intradyne/core';
 import { InputError } from '../errors/input-error.js';
 import { OutputExistsError } from '../write/atomic.js';
+import { ANALYZE_HELP, analyzeCommand } from './analyze.js';
 import { DEMO_HELP, demoCommand } from './demo.js';
 import { EXIT, UsageError } from './errors.js';
 import { INSPECT_HELP, inspectCommand } from './inspect.js';
@@ -10,6 +11,7 @@ import { SIMULATE_HELP, simulateCommand } from './simulate.js';
 type Command = (argv: readonly string[], out: (s: string) => void, err: (s: string) => void) => number;
 
 const COMMANDS: Record<string, { run: Command; summary: string; help: string }> = {
+  analyze: { run: analyzeCommand, summary: 'run the default receiver on a capture and measure it', help: ANALYZE_HELP },
   simulate: { run: simulateCommand, summary: 'write simulated captures with descriptors and references', help: SIMULATE_HELP },
   inspect: {
     run: inspectCommand,

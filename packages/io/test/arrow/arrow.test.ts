@@ -157,7 +157,7 @@ describe('Arrow IPC', () => {
     const t = tableFromIPC(new Uint8Array(readFileSync(join(dir, 'ref.arrow'))));
     expect(t.schema.fields.map((f) => f.name)).toEqual(['x_re', 'x_im', 'y_re', 'y_im']);
     // The fixture references load too.
-    expect(loadReferenceCsv(join(FIXTURES, 'qpsk-clean-reference.csv')).x.length).toBe(2 * 2048);
+    expect(loadReferenceCsv(join(FIXTURES, 'qpsk-clean-reference.csv')).x.length).toBe(2 * 8192);
   });
 
   it('writes a results table with numeric, string and missing values', () => {

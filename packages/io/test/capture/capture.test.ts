@@ -27,9 +27,9 @@ describe('captures', () => {
       rollOff: 0.1,
       dispersionPsPerNm: 340,
     });
-    expect(c.reference.x.length).toBe(2 * 2048);
+    expect(c.reference.x.length).toBe(2 * 8192);
     const block = concatBlocks([...c.blocks({ blockSize: 1000 })]);
-    expect(block.xi.length).toBe(5120);
+    expect(block.xi.length).toBe(20480);
     expect(block.samplesPerSymbol).toBe(2.5);
     // Given by its descriptor, and overridden from the command line.
     expect(openCapture(join(FIXTURES, 'qpsk-clean.json'), { rollOff: 0.3 }).rollOff).toBe(0.3);

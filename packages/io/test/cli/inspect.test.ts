@@ -37,12 +37,12 @@ describe('intradyne inspect', () => {
       expect(text.code).toBe(0);
       expect(text.stdout).toMatch(/symbol rate +\d+\.\d+ GBd estimated \(descriptor 32\.000 GBd/);
       const r = JSON.parse(run(['inspect', join(FIXTURES, `${name}.json`), '--json']).stdout);
-      // Fixtures have 2048 symbols (4096–5120 samples): at that length the
+      // Fixtures have 8192 symbols (16384–20480 samples): at 2048 symbols the
       // estimate spreads by about ±2 % (measured over seeds); 4 % is the bound.
       expect(Math.abs(r.symbolRate.estimateBd / 32e9 - 1)).toBeLessThan(0.04);
-      expect(r.samples).toBe(name === '16qam-scope' ? 5120 : 4096);
+      expect(r.samples).toBe(name === '16qam-scope' ? 20480 : 16384);
       // The simulator's channels have zero mean and rms near 0.7 (unit power
-      // split over I and Q); 4096 samples give a mean within ±0.05 (4σ).
+      // split over I and Q); 16384 samples give a mean within ±0.05 (over 8σ).
       for (const c of ['xi', 'xq', 'yi', 'yq']) {
         expect(Math.abs(r.channels[c].mean)).toBeLessThan(0.05);
         expect(r.channels[c].rms).toBeGreaterThan(0.5);

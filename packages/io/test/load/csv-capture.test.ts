@@ -71,7 +71,7 @@ describe('CSV capture loader', () => {
     const b = loadCsvCapture(join(FIXTURES, '64qam-time-column.csv'));
     // The fixture's descriptor states 64 GSa/s; t = n/fs printed to 17 digits gives it to ~1e-15.
     expect(Math.abs(b.sampleRate / 64e9 - 1)).toBeLessThan(1e-12);
-    expect(b.xi.length).toBe(4096);
+    expect(b.xi.length).toBe(16384);
     // A stated rate must agree with the time column (100 ppm).
     const e = inputError(() => loadCsvCapture(join(FIXTURES, '64qam-time-column.csv'), { sampleRate: 80e9 }));
     expect(e.message).toMatch(/64qam-time-column.csv:4: time column 't': expected the stated sample rate 80000000000 Sa\/s/);
