@@ -59,6 +59,8 @@ export function runScenario(scenario: Scenario, outDir: string, options: RunScen
         reference: referenceName,
         rollOff: capture.rollOff,
         ...(scenario.statesDispersion === false ? {} : { dispersionPsPerNm: dispersion }),
+        // The front end's skews, as its calibration would give them.
+        ...(opts.receiver?.skewPs && scenario.statesSkew !== false ? { skewPs: opts.receiver.skewPs } : {}),
         simulation: {
           scenario: scenario.name,
           options: opts,

@@ -8,7 +8,8 @@ import type { SimulationOptions } from '@intradyne/core';
  * File form (JSON): { "name", "description", "base": {…}, "captures": [{ "name", …overrides }] };
  * a capture's `timeColumn: true` writes a time column `t` (seconds) first.
  * plus `statesDispersion` (default true): whether the descriptor states the
- * accumulated dispersion, or leaves the receiver to estimate it.
+ * accumulated dispersion, or leaves the receiver to estimate it, and
+ * `statesSkew` (default true): whether it states the receiver's skews.
  */
 export interface Scenario {
   readonly name: string;
@@ -16,6 +17,8 @@ export interface Scenario {
   readonly base: Partial<SimulationOptions>;
   readonly captures: readonly ({ readonly name: string; readonly timeColumn?: boolean } & Partial<SimulationOptions>)[];
   readonly statesDispersion?: boolean;
+  /** Whether the descriptor states the receiver's skews, as a calibrated front end knows them (default true). */
+  readonly statesSkew?: boolean;
 }
 
 /** Deep merge of plain objects: `over` wins; arrays and values replace. */

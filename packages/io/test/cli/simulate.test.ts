@@ -105,3 +105,18 @@ describe('intradyne command', () => {
     expect(run(['simulate', file, '--out', dir]).stderr).toMatch(/not valid JSON/);
   });
 });
+
+describe('intradyne demo', () => {
+  it('simulates and analyses the demo sweep, one row per capture with valid figures', () => {
+    const r = run(['demo']);
+    expect(r.code).toBe(0);
+    const rows = r.stdout.split('\n').filter((l) => /^osnr-\d+db/.test(l));
+    expect(rows).toHaveLength(5);
+    // 16QAM at OSNR 18 dB is Es/N0 13.92 dB at 32 GBd (Essiambre et al. 2010): theory BER about 1e-2
+    // (Cho & Yoon 2002); the demo's receiver must land in the same decade.
+    const ber18 = Number(rows[0].trim().split(/\s+/)[2]);
+    expect(ber18).toBeGreaterThan(3e-3);
+    expect(ber18).toBeLessThan(3e-2);
+    expect(r.stdout).not.toMatch(/failed/);
+  });
+});

@@ -22,6 +22,12 @@ import { snrForBer } from '../theory/qam-ber.js';
 export interface AnalyzeOptions {
   /** Leading recovered symbols left out of the figures (default 2048: clock and carrier loops settling). */
   readonly skipSymbols?: number;
+  /**
+   * Trailing recovered symbols left out (default 128): the filters (matched
+   * filter, dispersion, equalizer) see zeros beyond the end of a capture, so
+   * its last symbols carry the edge, not the channel.
+   */
+  readonly skipTailSymbols?: number;
   /** Largest |measured − expected| normalized fourth moment accepted for the stated modulation (default 0.1). */
   readonly modulationTolerance?: number;
   /** Keep the recovered symbols in the result (default false). */
@@ -63,7 +69,7 @@ export interface ReproducibilityRecord {
   readonly version: string;
   /** The chain with every option of every stage. */
   readonly pipeline: StageRecord;
-  readonly analysis: { readonly skipSymbols: number; readonly modulationTolerance: number };
+  readonly analysis: { readonly skipSymbols: number; readonly skipTailSymbols: number; readonly modulationTolerance: number };
   /** SHA-256 of the input samples, rows (xi, xq, yi, yq) as little-endian float64. */
   readonly inputSha256: string;
   /** Input samples per channel. */
@@ -124,6 +130,9 @@ export function analyzeCapture(
   const skipSymbols = options.skipSymbols ?? 2048;
   if (!Number.isInteger(skipSymbols) || skipSymbols < 0)
     throw new OptionError('analyze', 'skipSymbols', 'an integer ≥ 0', skipSymbols);
+  const skipTail = options.skipTailSymbols ?? 128;
+  if (!Number.isInteger(skipTail) || skipTail < 0)
+    throw new OptionError('analyze', 'skipTailSymbols', 'an integer ≥ 0', skipTail);
   const tolerance = options.modulationTolerance ?? 0.1;
   if (!(tolerance > 0)) throw new OptionError('analyze', 'modulationTolerance', 'a positive number', tolerance);
   const chain = defaultReceiver(settings);
@@ -143,7 +152,7 @@ export function analyzeCapture(
     library: 'intradyne',
     version: LIBRARY_VERSION,
     pipeline: chain.describe(),
-    analysis: { skipSymbols, modulationTolerance: tolerance },
+    analysis: { skipSymbols, skipTailSymbols: skipTail, modulationTolerance: tolerance },
     inputSha256: hasher.hex(),
     samples,
   };
@@ -173,12 +182,22 @@ export function analyzeCapture(
 
   const eq = equalizerVerdict(chain);
   if (eq) return failed(eq);
-  if (symbols <= skipSymbols + 128) {
-    return failed({ check: 'length', reason: `${symbols} symbols recovered: too few to measure after skipping ${skipSymbols}` });
+  if (symbols <= skipSymbols + skipTail + 128) {
+    return failed({
+      check: 'length',
+      reason: `${symbols} symbols recovered: too few to measure after leaving out ${skipSymbols} leading and ${skipTail} trailing`,
+    });
   }
+  const measured =
+    skipTail === 0
+      ? recovered
+      : {
+          x: recovered.x.subarray(0, 2 * (symbols - skipTail)) as ComplexArray,
+          y: recovered.y.subarray(0, 2 * (symbols - skipTail)) as ComplexArray,
+        };
   let m: Measurement;
   try {
-    m = measure(recovered, reference, settings.modulation, { skipSymbols, symbolRate: settings.symbolRate, keepAligned: true });
+    m = measure(measured, reference, settings.modulation, { skipSymbols, symbolRate: settings.symbolRate, keepAligned: true });
   } catch (e) {
     if (e instanceof ReferenceNotFoundError) return failed({ check: 'reference', reason: e.message });
     if (e instanceof RangeError && /reference/.test(e.message)) return failed({ check: 'reference', reason: e.message });
