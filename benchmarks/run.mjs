@@ -44,3 +44,26 @@ measure(
     }),
   3,
 );
+
+// The default receiver, end to end from the four channels to the figures.
+{
+  const { analyzeCapture } = await import('../packages/metrics/dist/index.js');
+  const n = 2 ** 17;
+  const cap = simulate({
+    seed: 3,
+    modulation: '16qam',
+    symbols: n,
+    symbolRate: 32e9,
+    samplesPerSymbol: 2.5,
+    channel: { esN0Db: 18, sop: 'random', dgdPs: 10, linewidthHz: 1e5, freqOffsetHz: 1e9, dispersionPsPerNm: 1360 },
+  });
+  const block = { domain: 'channels', ...cap.channels, samplesPerSymbol: 2.5 };
+  const settings = { modulation: '16qam', symbolRate: 32e9, sampleRate: 80e9, dispersionPsPerNm: 1360 };
+  measure(
+    'default receiver DP-16QAM, 2.5 Sa/symbol (2^17 symbols)',
+    'symbols',
+    n,
+    () => analyzeCapture([block], settings, cap.reference),
+    3,
+  );
+}
