@@ -1,6 +1,7 @@
-import { type BlockOf, type FieldBlock, fieldBlock } from '../pipeline/blocks.js';
+import { type BlockOf, emptyBlock, type FieldBlock, fieldBlock } from '../pipeline/blocks.js';
+import { LeadingSpan } from '../pipeline/leading-span.js';
 import { BlockError, OptionError, type Stage, type StageRecord } from '../pipeline/stage.js';
-import { type ComplexArray, concatComplex } from '../signal/complex.js';
+import type { ComplexArray } from '../signal/complex.js';
 import { estimateOffsetPeriodogram } from './fourth-power-periodogram.js';
 import { removeFrequencyOffset } from './frequency-removal.js';
 
@@ -50,9 +51,8 @@ class CoarseFrequency<D extends WaveformDomain> implements Stage<D, D, CoarseFre
   readonly name = NAME;
   readonly input: D;
   readonly output: D;
-  private readonly span: number;
-  private held: FieldBlock[] = [];
-  private heldSamples = 0;
+  private readonly spanSamples: number;
+  private readonly span: LeadingSpan<FieldBlock>;
   private estimate = Number.NaN;
   private delivered = 0;
 
@@ -63,30 +63,27 @@ class CoarseFrequency<D extends WaveformDomain> implements Stage<D, D, CoarseFre
       throw new OptionError(NAME, 'domain', "'twoSps' or 'field'", this.input);
     const span = options.estimateSamples ?? 65_536;
     if (!Number.isInteger(span) || span < 1024) throw new OptionError(NAME, 'estimateSamples', 'an integer ≥ 1024', span);
-    this.span = span;
+    this.spanSamples = span;
+    this.span = new LeadingSpan(span);
   }
 
   process(input: BlockOf<D>): BlockOf<D> {
     const block = input as FieldBlock;
     if (block.domain !== this.input)
       throw new BlockError(`${NAME}: expected a '${this.input}' block, received '${block.domain}'`);
-    if (!Number.isNaN(this.estimate)) return this.shift(block.x.slice() as ComplexArray, block.y.slice() as ComplexArray, block);
-    this.held.push(block);
-    this.heldSamples += block.x.length >> 1;
-    if (this.heldSamples < this.span) {
-      const none = block.x.subarray(0, 0) as ComplexArray;
-      return fieldBlock(this.output as WaveformDomain, none, none, block.sampleRate, block.samplesPerSymbol) as BlockOf<D>;
-    }
-    return this.release();
+    if (this.span.ready) return this.shift(block);
+    const r = this.span.push(block);
+    if (!r) return emptyBlock(this.output, block.sampleRate, block.samplesPerSymbol);
+    return this.estimateAndShift(r.calibration, r.all);
   }
 
   flush(): BlockOf<D> | null {
-    return this.held.length > 0 ? this.release() : null;
+    const r = this.span.finish();
+    return r ? this.estimateAndShift(r.calibration, r.all) : null;
   }
 
   reset(): void {
-    this.held = [];
-    this.heldSamples = 0;
+    this.span.reset();
     this.estimate = Number.NaN;
     this.delivered = 0;
   }
@@ -96,28 +93,22 @@ class CoarseFrequency<D extends WaveformDomain> implements Stage<D, D, CoarseFre
   }
 
   describe(): StageRecord {
-    return { stage: NAME, options: { domain: this.input, estimateSamples: this.span } };
+    return { stage: NAME, options: { domain: this.input, estimateSamples: this.spanSamples } };
   }
 
-  private release(): BlockOf<D> {
-    const first = this.held[0];
-    const x = concatComplex(this.held.map((b) => b.x));
-    const y = concatComplex(this.held.map((b) => b.y));
-    this.held = [];
-    this.heldSamples = 0;
-    const n = Math.min(this.span, x.length >> 1);
+  private estimateAndShift(calibration: FieldBlock, all: FieldBlock): BlockOf<D> {
     this.estimate =
-      n === 0
-        ? 0
-        : estimateOffsetPeriodogram(x.subarray(0, 2 * n) as ComplexArray, y.subarray(0, 2 * n) as ComplexArray, first.sampleRate);
-    return this.shift(x, y, first);
+      calibration.x.length === 0 ? 0 : estimateOffsetPeriodogram(calibration.x, calibration.y, calibration.sampleRate);
+    return this.shift(all);
   }
 
   // z[n] ← z[n]·e^(−j2π·Δf·n/fs), n counted from the start of the stream.
-  private shift(x: ComplexArray, y: ComplexArray, like: FieldBlock): BlockOf<D> {
-    removeFrequencyOffset(x, this.estimate, like.sampleRate, 0, this.delivered);
-    removeFrequencyOffset(y, this.estimate, like.sampleRate, 0, this.delivered);
+  private shift(block: FieldBlock): BlockOf<D> {
+    const x = block.x.slice() as ComplexArray;
+    const y = block.y.slice() as ComplexArray;
+    removeFrequencyOffset(x, this.estimate, block.sampleRate, 0, this.delivered);
+    removeFrequencyOffset(y, this.estimate, block.sampleRate, 0, this.delivered);
     this.delivered += x.length >> 1;
-    return fieldBlock(this.output as WaveformDomain, x, y, like.sampleRate, like.samplesPerSymbol) as BlockOf<D>;
+    return fieldBlock(this.output as WaveformDomain, x, y, block.sampleRate, block.samplesPerSymbol) as BlockOf<D>;
   }
 }

@@ -1,7 +1,7 @@
 import { type ChannelBlock, emptyBlock } from '../pipeline/blocks.js';
+import { LeadingSpan } from '../pipeline/leading-span.js';
 import { BlockError, OptionError, type Stage, type StageRecord } from '../pipeline/stage.js';
 import type { ChannelName } from '../signal/dual-pol.js';
-import { LeadingSpan } from './leading-span.js';
 
 export interface NormalizeChannelsOptions {
   /**
@@ -67,7 +67,7 @@ class NormalizeChannels implements Stage<'channels', 'channels', NormalizeChanne
   readonly name = 'normalize-channels';
   readonly input = 'channels' as const;
   readonly output = 'channels' as const;
-  private readonly span: LeadingSpan;
+  private readonly span: LeadingSpan<ChannelBlock>;
   private readonly calibrationSamples: number;
   private readonly removeDc: boolean;
   private readonly normalizePower: boolean;

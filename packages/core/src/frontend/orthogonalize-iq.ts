@@ -1,6 +1,6 @@
 import { type ChannelBlock, emptyBlock } from '../pipeline/blocks.js';
+import { LeadingSpan } from '../pipeline/leading-span.js';
 import { OptionError, type Stage, type StageRecord } from '../pipeline/stage.js';
-import { LeadingSpan } from './leading-span.js';
 import { checkChannels } from './normalize-channels.js';
 
 /** 'gsop': Gram–Schmidt, I kept as the reference axis; 'lowdin': symmetric, both axes move by half the error. */
@@ -98,7 +98,7 @@ class OrthogonalizeIq implements Stage<'channels', 'channels', OrthogonalizeIqDi
   readonly output = 'channels' as const;
   private readonly method: OrthogonalizationMethod;
   private readonly calibrationSamples: number;
-  private readonly span: LeadingSpan;
+  private readonly span: LeadingSpan<ChannelBlock>;
   private estimates: [IqImbalanceEstimate, IqImbalanceEstimate] | null = null;
 
   constructor(o: OrthogonalizeIqOptions) {

@@ -4,6 +4,7 @@ import {
   blindPhaseSearch,
   butterflyEqualizer,
   type ChannelBlock,
+  coarseFrequencyShift,
   combineChannels,
   compensateDispersion,
   complexArray,
@@ -207,5 +208,15 @@ export const stageCatalog: CatalogEntry[] = [
     make: () =>
       butterflyEqualizer({ modulation: 'qpsk', taps: 9, preConvergenceSymbols: 64, convergeOnStart: { symbols: 1, passes: 0 } }),
     input: () => randomField('twoSps', 900, 5, 64e9, 2),
+  },
+  {
+    name: 'coarse-frequency (estimate span across blocks)',
+    make: () => coarseFrequencyShift({ estimateSamples: 1024 }),
+    input: () => randomField('twoSps', 2500, 40),
+  },
+  {
+    name: 'coarse-frequency (stream shorter than the span, field domain)',
+    make: () => coarseFrequencyShift({ domain: 'field', estimateSamples: 4096 }),
+    input: () => randomField('field', 1500, 41),
   },
 ];

@@ -1,19 +1,20 @@
-import { type ChannelBlock, concatBlocks, sliceBlock } from '../pipeline/blocks.js';
+import { type AnyBlock, blockLength, concatBlocks, sliceBlock } from './blocks.js';
 
 /**
- * Holds the first `span` samples of a channel stream back until they have
- * all arrived, so that statistics can be estimated on exactly those samples
- * whatever the block sizes; afterwards blocks pass straight through.
- * Internal helper of the front-end stages.
+ * Holds the first `span` samples of a stream back until they have all
+ * arrived, so that a stage can estimate on exactly those samples whatever the
+ * block sizes; afterwards blocks pass straight through. The shared shape of
+ * the "estimate on the start, then apply to all" stages (normalization, IQ
+ * orthogonalization, coarse frequency offset).
  */
-export class LeadingSpan {
-  private held: ChannelBlock[] = [];
+export class LeadingSpan<B extends AnyBlock> {
+  private held: B[] = [];
   private count = 0;
   private done = false;
 
   constructor(private readonly span: number) {}
 
-  /** True once the statistics have been estimated. */
+  /** True once the span has been released. */
   get ready(): boolean {
     return this.done;
   }
@@ -23,16 +24,16 @@ export class LeadingSpan {
    * returns everything held so far (the span and what came after it in the
    * same block), with `calibration` the first `span` samples.
    */
-  push(block: ChannelBlock): { all: ChannelBlock; calibration: ChannelBlock } | null {
+  push(block: B): { all: B; calibration: B } | null {
     if (this.done) return { all: block, calibration: block };
     this.held.push(block);
-    this.count += block.xi.length;
+    this.count += blockLength(block);
     if (this.count < this.span) return null;
     return this.release();
   }
 
   /** Ends the stream: releases what is held, even when the span is not full (null when nothing is held). */
-  finish(): { all: ChannelBlock; calibration: ChannelBlock } | null {
+  finish(): { all: B; calibration: B } | null {
     if (this.done || this.held.length === 0) return null;
     return this.release();
   }
@@ -43,11 +44,12 @@ export class LeadingSpan {
     this.done = false;
   }
 
-  private release(): { all: ChannelBlock; calibration: ChannelBlock } {
+  private release(): { all: B; calibration: B } {
     const all = concatBlocks(this.held);
     this.held = [];
     this.done = true;
-    const n = Math.min(this.span, all.xi.length);
-    return { all, calibration: n === all.xi.length ? all : sliceBlock(all, 0, n) };
+    const total = blockLength(all);
+    const n = Math.min(this.span, total);
+    return { all, calibration: n === total ? all : sliceBlock(all, 0, n) };
   }
 }
