@@ -33,12 +33,17 @@ export function runOnWorkers(
     let finished = 0;
     let failed = false;
     const workers: Worker[] = [];
+    const stopped = new Set<Worker>();
+    const stop = (w: Worker) => {
+      stopped.add(w);
+      void w.terminate();
+    };
     const stopAll = () => {
-      for (const w of workers) void w.terminate();
+      for (const w of workers) stop(w);
     };
     const feed = (w: Worker) => {
       if (next < tasks.length) w.postMessage(tasks[next++]);
-      else void w.terminate();
+      else stop(w);
     };
     const count = Math.min(jobs, tasks.length);
     for (let i = 0; i < count; i++) {
@@ -65,6 +70,13 @@ export function runOnWorkers(
         failed = true;
         stopAll();
         rejectPool(e);
+      });
+      // A worker that ends without being told to (out of memory, say) would leave its task unanswered.
+      w.on('exit', (code) => {
+        if (failed || stopped.has(w)) return;
+        failed = true;
+        stopAll();
+        rejectPool(new Error(`sweep: a worker thread exited with code ${code} before finishing its capture`));
       });
       feed(w);
     }
