@@ -7,11 +7,17 @@ import { DEMO_HELP, demoCommand } from './demo.js';
 import { EXIT, UsageError } from './errors.js';
 import { INSPECT_HELP, inspectCommand } from './inspect.js';
 import { SIMULATE_HELP, simulateCommand } from './simulate.js';
+import { defaultErr, SWEEP_HELP, sweepCommand } from './sweep.js';
 
-type Command = (argv: readonly string[], out: (s: string) => void, err: (s: string) => void) => number;
+type Command = (argv: readonly string[], out: (s: string) => void, err: (s: string) => void) => number | Promise<number>;
 
 const COMMANDS: Record<string, { run: Command; summary: string; help: string }> = {
   analyze: { run: analyzeCommand, summary: 'run the default receiver on a capture and measure it', help: ANALYZE_HELP },
+  sweep: {
+    run: sweepCommand,
+    summary: 'analyse every capture of a folder or manifest in parallel into one results table',
+    help: SWEEP_HELP,
+  },
   simulate: { run: simulateCommand, summary: 'write simulated captures with descriptors and references', help: SIMULATE_HELP },
   inspect: {
     run: inspectCommand,
@@ -34,12 +40,15 @@ ${Object.entries(COMMANDS)
 Exit codes: 0 done, 1 the analysis failed, 2 bad usage or bad input.
 `;
 
-/** Runs the command line; returns the exit code. */
+/**
+ * Runs the command line; returns the exit code, or a promise of it for a
+ * command that works asynchronously (sweep).
+ */
 export function main(
   argv: readonly string[],
   out = (s: string) => void process.stdout.write(s),
-  err = (s: string) => void process.stderr.write(s),
-): number {
+  err = defaultErr,
+): number | Promise<number> {
   const [name, ...rest] = argv;
   if (name === undefined || name === '--help' || name === '-h' || name === 'help') {
     out(MAIN_HELP);
@@ -54,19 +63,28 @@ export function main(
     err(`intradyne: unknown command '${name}'; expected one of ${Object.keys(COMMANDS).join(', ')}\n`);
     return EXIT.badInput;
   }
-  try {
-    return command.run(rest, out, err);
-  } catch (e) {
+  const badInput = (e: unknown): number => {
     if (e instanceof UsageError || e instanceof InputError || e instanceof OptionError || e instanceof OutputExistsError) {
       err(`${e.message}\n`);
       return EXIT.badInput;
     }
     throw e;
+  };
+  try {
+    const code = command.run(rest, out, err);
+    return typeof code === 'number' ? code : code.catch(badInput);
+  } catch (e) {
+    return badInput(e);
   }
 }
 
 // Run when executed directly (as the bin or with node), not when imported.
 const invoked = process.argv[1] ? new URL(`file://${process.argv[1]}`).pathname : '';
 if (invoked && import.meta.url.endsWith(invoked.replace(/^.*\/dist\//, '/dist/'))) {
-  process.exitCode = main(process.argv.slice(2));
+  const code = main(process.argv.slice(2));
+  if (typeof code === 'number') process.exitCode = code;
+  else
+    void code.then((c) => {
+      process.exitCode = c;
+    });
 }

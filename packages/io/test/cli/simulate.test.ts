@@ -16,7 +16,8 @@ function run(argv: string[]): { code: number; stdout: string; stderr: string } {
       stderr += s;
     },
   );
-  return { code, stdout, stderr };
+  // inspect and simulate are synchronous: main returns the exit code itself.
+  return { code: code as number, stdout, stderr };
 }
 
 const dirs: string[] = [];

@@ -1,0 +1,49 @@
+import { type AnalysisSettings, analysisToJson, analyzeFile } from '../analysis/analyze-file.js';
+import { InputError } from '../errors/input-error.js';
+import { captureInputHash } from './input-hash.js';
+import { rowFromAnalysis, rowFromError, type SweepRow } from './result-row.js';
+
+/** One capture to analyse, as sent to a worker. */
+export interface SweepTask {
+  readonly key: string;
+  readonly path: string;
+  /** The input hash of the stored row made with the same settings, if any: equal means skip. */
+  readonly storedInputSha256: string | null;
+}
+
+/** What a worker sends back for a task. */
+export type SweepOutcome =
+  | { readonly kind: 'skipped'; readonly key: string; readonly inputSha256: string }
+  | {
+      readonly kind: 'analysed';
+      readonly key: string;
+      readonly inputSha256: string | null;
+      readonly row: SweepRow;
+      /** False for an unexpected error: not stored, so that a re-run tries again. */
+      readonly store: boolean;
+    };
+
+/**
+ * Hashes a capture's files and, unless the hash equals the stored one,
+ * analyses it with the default receiver. A bad capture (InputError) becomes
+ * a row with check 'input'; an unexpected error a row with check 'error'.
+ * Never throws.
+ */
+export function runSweepTask(task: SweepTask, settings: AnalysisSettings): SweepOutcome {
+  const inputSha256 = captureInputHash(task.path);
+  if (inputSha256 !== null && inputSha256 === task.storedInputSha256) return { kind: 'skipped', key: task.key, inputSha256 };
+  try {
+    const json = analysisToJson(analyzeFile(task.path, settings));
+    return { kind: 'analysed', key: task.key, inputSha256, row: rowFromAnalysis(task.key, json, inputSha256), store: true };
+  } catch (e) {
+    const input = e instanceof InputError;
+    const message = input ? (e as Error).message : `${(e as Error).name}: ${(e as Error).message}`;
+    return {
+      kind: 'analysed',
+      key: task.key,
+      inputSha256,
+      row: rowFromError(task.key, input ? 'input' : 'error', message, inputSha256),
+      store: input && inputSha256 !== null,
+    };
+  }
+}

@@ -1,0 +1,86 @@
+import { readFileSync, statSync } from 'node:fs';
+import { dirname, join, relative, resolve, sep } from 'node:path';
+import { listCaptures } from '../capture/capture.js';
+import { InputError } from '../errors/input-error.js';
+
+/** One capture of a sweep. */
+export interface SweepCapture {
+  /** The capture's path relative to the sweep root, with '/' separators: its key in the table and the journal. */
+  readonly key: string;
+  /** The path to open (the root as given, joined with the key). */
+  readonly path: string;
+}
+
+/** What a sweep runs on. */
+export interface SweepInputs {
+  readonly kind: 'folder' | 'manifest';
+  /** The folder the keys are relative to: the folder swept, or the manifest's folder. */
+  readonly root: string;
+  /** In the sweep's stable order: sorted for a folder, as listed for a manifest. */
+  readonly captures: readonly SweepCapture[];
+}
+
+const toKey = (p: string) => p.split(sep).join('/');
+
+/**
+ * The captures of a sweep: every capture of a folder and its subfolders
+ * (see `listCaptures`), sorted by key, or the captures a manifest lists.
+ *
+ * A manifest is a UTF-8 text file with one capture per line (its data file or
+ * its descriptor), relative to the manifest's folder (or absolute); blank
+ * lines and lines whose first non-blank character is '#' are ignored, as is
+ * surrounding white space. The captures keep the manifest's order.
+ * @throws InputError when the input does not exist, a folder holds no
+ *   capture, a manifest is empty or lists a capture twice (naming the line)
+ */
+export function sweepInputs(input: string): SweepInputs {
+  let isFolder: boolean;
+  try {
+    isFolder = statSync(input).isDirectory();
+  } catch {
+    throw new InputError({ file: input }, 'sweep input', 'a folder of captures or a manifest file', 'no such file or folder');
+  }
+  if (isFolder) {
+    const found = listCaptures(input);
+    if (found.length === 0)
+      throw new InputError(
+        { file: input },
+        'sweep input',
+        'a folder with at least one capture (a data file and its .json)',
+        'none',
+      );
+    const captures = found.map((p) => ({ key: toKey(relative(input, p)), path: p })).sort((a, b) => (a.key < b.key ? -1 : 1));
+    return { kind: 'folder', root: input, captures };
+  }
+  return { kind: 'manifest', root: dirname(input), captures: readManifest(input) };
+}
+
+/**
+ * Reads a manifest (format in {@link sweepInputs}).
+ * @throws InputError naming the manifest and line of a capture listed twice, or an empty manifest
+ */
+export function readManifest(path: string): SweepCapture[] {
+  const root = dirname(path);
+  const lines = readFileSync(path, 'utf8').split(/\r?\n/);
+  const seen = new Map<string, number>();
+  const captures: SweepCapture[] = [];
+  for (const [i, raw] of lines.entries()) {
+    const text = raw.trim();
+    if (text === '' || text.startsWith('#')) continue;
+    const full = resolve(root, text);
+    const key = toKey(relative(resolve(root), full));
+    const first = seen.get(key);
+    if (first !== undefined) {
+      throw new InputError(
+        { file: path, line: i + 1, column: raw.indexOf(text) + 1 },
+        'capture',
+        'each capture listed once',
+        `${JSON.stringify(text)}, already on line ${first}`,
+      );
+    }
+    seen.set(key, i + 1);
+    captures.push({ key, path: text.startsWith('/') ? text : join(root, text) });
+  }
+  if (captures.length === 0) throw new InputError({ file: path }, 'manifest', 'at least one capture path (one per line)', 'none');
+  return captures;
+}

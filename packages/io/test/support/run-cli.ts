@@ -1,0 +1,56 @@
+import { spawn } from 'node:child_process';
+import { existsSync } from 'node:fs';
+import { fileURLToPath } from 'node:url';
+import { main } from '../../src/index.js';
+
+export interface CliRun {
+  readonly code: number;
+  readonly stdout: string;
+  readonly stderr: string;
+}
+
+/** Runs the command in this process (on the sources), awaiting an asynchronous command. */
+export async function runMain(argv: readonly string[]): Promise<CliRun> {
+  let stdout = '';
+  let stderr = '';
+  const code = await main(
+    argv,
+    (s) => {
+      stdout += s;
+    },
+    (s) => {
+      stderr += s;
+    },
+  );
+  return { code, stdout, stderr };
+}
+
+/** The repository root. */
+export const ROOT = fileURLToPath(new URL('../../../../', import.meta.url));
+/** The built command; the test command builds before the tests run. */
+export const BUILT_CLI = fileURLToPath(new URL('../../dist/cli/main.js', import.meta.url));
+
+/**
+ * Runs the built command in a child process (worker threads need the built
+ * JavaScript). `onStart` receives the child, to kill it part-way.
+ */
+export function runBuilt(
+  argv: readonly string[],
+  onStart?: (kill: () => void) => void,
+): Promise<CliRun & { signal: string | null }> {
+  if (!existsSync(BUILT_CLI)) throw new Error(`${BUILT_CLI} is missing: build first (npx -y pnpm@12.4.2 build)`);
+  return new Promise((resolve, reject) => {
+    const child = spawn(process.execPath, [BUILT_CLI, ...argv], { stdio: ['ignore', 'pipe', 'pipe'] });
+    let stdout = '';
+    let stderr = '';
+    child.stdout.on('data', (d) => {
+      stdout += d;
+    });
+    child.stderr.on('data', (d) => {
+      stderr += d;
+    });
+    child.on('error', reject);
+    child.on('close', (code, signal) => resolve({ code: code ?? -1, signal, stdout, stderr }));
+    onStart?.(() => child.kill('SIGKILL'));
+  });
+}
