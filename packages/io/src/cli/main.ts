@@ -24,7 +24,7 @@ const COMMANDS: Record<string, { run: Command; summary: string; help: string }> 
     summary: 'channel statistics, clipping, a power-spectrum summary and the symbol rate of a capture',
     help: INSPECT_HELP,
   },
-  demo: { run: demoCommand, summary: 'simulate the built-in demo scenario and print what was made', help: DEMO_HELP },
+  demo: { run: demoCommand, summary: 'simulate the built-in demo sweep, analyse it and print the results', help: DEMO_HELP },
 };
 
 export const MAIN_HELP = `intradyne ${LIBRARY_VERSION}: offline DSP for dual-polarization coherent receiver captures
