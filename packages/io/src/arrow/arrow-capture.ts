@@ -1,9 +1,9 @@
 import { readFileSync } from 'node:fs';
-import { open } from 'node:fs/promises';
 import { CHANNEL_NAMES, type ChannelBlock, type ChannelName, concatBlocks, type DualPol } from '@intradyne/core';
 import { type RecordBatch, RecordBatchReader, type Schema, Type, type Vector } from 'apache-arrow';
 import { checkReferenceLength, dualPolFromColumns, REFERENCE_COLUMNS } from '../capture/reference.js';
 import { InputError } from '../errors/input-error.js';
+import { openForReadingAsync } from '../load/open-file.js';
 
 export interface ArrowCaptureOptions {
   /** Column names (case-insensitive) of the channels, e.g. `{ xi: 'CH1' }`; by default the channel names. */
@@ -178,12 +178,7 @@ export async function* readArrowCaptureAsync(
   path: string,
   options: ArrowCaptureOptions = {},
 ): AsyncGenerator<ChannelBlock, void, undefined> {
-  let handle: Awaited<ReturnType<typeof open>>;
-  try {
-    handle = await open(path, 'r');
-  } catch (e) {
-    throw new InputError({ file: path }, 'file', 'a readable file', (e as NodeJS.ErrnoException).code ?? String(e));
-  }
+  const handle = await openForReadingAsync(path);
   try {
     let reader: AsyncIterable<RecordBatch>;
     try {

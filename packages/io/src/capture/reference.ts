@@ -1,8 +1,8 @@
 import { closeSync, readSync } from 'node:fs';
 import { type ComplexArray, type Constellation, complexArray, type DualPol } from '@intradyne/core';
 import { InputError } from '../errors/input-error.js';
-import { openForReading } from '../load/csv-capture.js';
 import { BufferFeeder, type HeaderCell, NumericCsvTable, type TableBlock } from '../load/csv-table.js';
+import { openForReading } from '../load/open-file.js';
 
 /** Reference column names, in slot order. */
 export const REFERENCE_COLUMNS = ['x_re', 'x_im', 'y_re', 'y_im'] as const;

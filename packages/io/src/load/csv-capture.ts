@@ -1,8 +1,8 @@
-import { closeSync, openSync, readSync } from 'node:fs';
-import { open } from 'node:fs/promises';
+import { closeSync, readSync } from 'node:fs';
 import { CHANNEL_NAMES, type ChannelBlock, type ChannelName, concatBlocks } from '@intradyne/core';
 import { InputError } from '../errors/input-error.js';
 import { BufferFeeder, type HeaderCell, NumericCsvTable, type TableBlock } from './csv-table.js';
+import { openForReading, openForReadingAsync } from './open-file.js';
 import { SAMPLE_RATE_TOLERANCE, TimeAxis } from './time-axis.js';
 
 /** Column names of a capture CSV: the four channels and the time column. */
@@ -24,18 +24,6 @@ export interface CsvCaptureOptions {
   readonly delimiter?: string;
   /** Read buffer, bytes (default 1 MiB); also the longest line accepted. */
   readonly bufferBytes?: number;
-}
-
-/**
- * Opens a file for reading.
- * @throws InputError when it cannot be opened (missing, a folder, no permission)
- */
-export function openForReading(path: string): number {
-  try {
-    return openSync(path, 'r');
-  } catch (e) {
-    throw new InputError({ file: path }, 'file', 'a readable file', (e as NodeJS.ErrnoException).code ?? String(e));
-  }
 }
 
 /** One file per channel: the path of each. */
@@ -255,12 +243,7 @@ export async function* readCsvCaptureAsync(
   path: string,
   options: CsvCaptureOptions = {},
 ): AsyncGenerator<ChannelBlock, void, undefined> {
-  let handle: Awaited<ReturnType<typeof open>>;
-  try {
-    handle = await open(path, 'r');
-  } catch (e) {
-    throw new InputError({ file: path }, 'file', 'a readable file', (e as NodeJS.ErrnoException).code ?? String(e));
-  }
+  const handle = await openForReadingAsync(path);
   try {
     const state = new CaptureCsvState(path, options, CHANNEL_NAMES);
     while (!state.ended) {

@@ -3,25 +3,11 @@ import { join } from 'node:path';
 import { simulate } from '@intradyne/core';
 import { describe, expect, it } from 'vitest';
 import { writeCaptureArrow, writeSymbolsArrow } from '../../src/arrow/arrow-write.js';
-import { main } from '../../src/index.js';
 import { writeCaptureCsv, writeJsonAtomic } from '../../src/write/csv.js';
+import { runMainSync } from '../support/run-cli.js';
 import { FIXTURES, tempDir } from '../support/temp.js';
 
-function run(argv: string[]): { code: number; stdout: string; stderr: string } {
-  let stdout = '';
-  let stderr = '';
-  const code = main(
-    argv,
-    (s) => {
-      stdout += s;
-    },
-    (s) => {
-      stderr += s;
-    },
-  );
-  // inspect and simulate are synchronous: main returns the exit code itself.
-  return { code: code as number, stdout, stderr };
-}
+const run = runMainSync;
 
 describe('intradyne inspect', () => {
   it('is listed and has help', () => {

@@ -1,34 +1,10 @@
-import { mkdtempSync, readdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { readdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
-import { afterEach, describe, expect, it } from 'vitest';
-import { main } from '../../src/index.js';
+import { describe, expect, it } from 'vitest';
+import { runMainSync } from '../support/run-cli.js';
+import { tempDir } from '../support/temp.js';
 
-function run(argv: string[]): { code: number; stdout: string; stderr: string } {
-  let stdout = '';
-  let stderr = '';
-  const code = main(
-    argv,
-    (s) => {
-      stdout += s;
-    },
-    (s) => {
-      stderr += s;
-    },
-  );
-  // inspect and simulate are synchronous: main returns the exit code itself.
-  return { code: code as number, stdout, stderr };
-}
-
-const dirs: string[] = [];
-function tempDir(): string {
-  const d = mkdtempSync(join(tmpdir(), 'intradyne-test-'));
-  dirs.push(d);
-  return d;
-}
-afterEach(() => {
-  for (const d of dirs.splice(0)) rmSync(d, { recursive: true, force: true });
-});
+const run = runMainSync;
 
 describe('intradyne command', () => {
   it('prints help with the commands and exit codes', () => {

@@ -25,6 +25,23 @@ export async function runMain(argv: readonly string[]): Promise<CliRun> {
   return { code, stdout, stderr };
 }
 
+/** Runs a synchronous command (all but sweep) in this process, for tests that are not async. */
+export function runMainSync(argv: readonly string[]): CliRun {
+  let stdout = '';
+  let stderr = '';
+  const code = main(
+    argv,
+    (s) => {
+      stdout += s;
+    },
+    (s) => {
+      stderr += s;
+    },
+  );
+  if (typeof code !== 'number') throw new Error(`runMainSync: '${argv[0]}' is asynchronous; use runMain`);
+  return { code, stdout, stderr };
+}
+
 /** The repository root. */
 export const ROOT = fileURLToPath(new URL('../../../../', import.meta.url));
 /** The built command; the test command builds before the tests run. */
