@@ -1,0 +1,4 @@
+// Placeholder replaced below.
+export function runNative() {
+  return { notes: [] };
+}
