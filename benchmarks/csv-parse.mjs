@@ -8,6 +8,7 @@ import { cpus, tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { Rng } from '../packages/core/dist/index.js';
 import { readCsvCapture, writeCaptureCsv } from '../packages/io/dist/index.js';
+import { report as record, saveSection } from './harness.mjs';
 
 const SAMPLES = Number(process.env.CSV_BENCH_SAMPLES ?? 1_000_000);
 const RUNS = 3;
@@ -58,17 +59,12 @@ try {
   const bytes = statSync(path).size;
   console.log(`machine: ${cpus()[0]?.model ?? 'unknown CPU'}, Node ${process.version}`);
   console.log(`capture CSV: ${SAMPLES} rows × 4 channels, ${(bytes / 1e6).toFixed(1)} MB`);
+  const records = [];
   const report = (label, fn) => {
     fn();
     const times = [];
     for (let r = 0; r < RUNS; r++) times.push(time(fn).seconds);
-    times.sort((a, b) => a - b);
-    const mbs = (s) => bytes / s / 1e6;
-    console.log(
-      `${label.padEnd(44)} ${mbs(times[Math.floor(RUNS / 2)])
-        .toFixed(1)
-        .padStart(7)} MB/s  (${mbs(times.at(-1)).toFixed(1)}–${mbs(times[0]).toFixed(1)})`,
-    );
+    records.push(record(label, { units: 'B', perRun: bytes, params: { rows: SAMPLES, MB: (bytes / 1e6).toFixed(1) } }, times));
   };
   // Same numbers both ways, bit for bit.
   const a = naive(path);
@@ -90,6 +86,9 @@ try {
   }
   console.log(`${'streaming: resident memory above the start'.padEnd(44)} ${((peak - base) / 1e6).toFixed(1).padStart(7)} MB`);
   report('naive (readFileSync, split, Number)', () => naive(path));
+  saveSection('csv-parse', records, {
+    notes: [`streaming: resident memory above the start ${((peak - base) / 1e6).toFixed(1)} MB`],
+  });
 } finally {
   rmSync(dir, { recursive: true, force: true });
 }

@@ -1,26 +1,15 @@
 // Throughput of the foundation's building blocks. Run after a build:
 //   npx -y pnpm@12.4.2 bench
 // Each figure is the median of several runs, with the spread (min–max).
-import { cpus } from 'node:os';
 import { complexArray, fft, Rng, simulate } from '../packages/core/dist/index.js';
+import { bench, machine, saveSection } from './harness.mjs';
 
+const records = [];
 function measure(label, units, perRun, fn, runs = 5) {
-  fn(); // warm-up: plans, chirps, JIT
-  const times = [];
-  for (let r = 0; r < runs; r++) {
-    const t0 = process.hrtime.bigint();
-    fn();
-    times.push(Number(process.hrtime.bigint() - t0) / 1e9);
-  }
-  times.sort((a, b) => a - b);
-  const rate = (s) => perRun / s;
-  const median = times[Math.floor(runs / 2)];
-  console.log(
-    `${label.padEnd(44)} ${(rate(median) / 1e6).toFixed(2).padStart(9)} M${units}/s  (${(rate(times.at(-1)) / 1e6).toFixed(2)}–${(rate(times[0]) / 1e6).toFixed(2)})`,
-  );
+  records.push(bench(label, { units, perRun, runs }, fn));
 }
 
-console.log(`machine: ${cpus()[0]?.model ?? 'unknown CPU'}, Node ${process.version}`);
+console.log(`machine: ${machine().cpu}, Node ${process.version}`);
 for (const n of [4096, 65536, 1 << 20, 3 * 4096, 100_000]) {
   const x = complexArray(n);
   new Rng(1).fillGaussian(x);
@@ -67,3 +56,4 @@ measure(
     3,
   );
 }
+saveSection('foundation', records);
