@@ -111,21 +111,31 @@ function fmt(v) {
 
 function writeReadmeTable(all) {
   const m = all.machine;
+  const rows = [['section', 'measurement', 'median', 'spread', 'runs', 'parameters']];
+  for (const [name, sec] of Object.entries(all.sections)) {
+    for (const r of sec.records) {
+      rows.push([
+        name,
+        r.label,
+        `${fmt(r.median)}${r.units}`,
+        `${fmt(r.min).trim()}–${fmt(r.max)}${r.units}`,
+        String(r.runs),
+        formatParams(r.params),
+      ]);
+    }
+    for (const note of sec.notes ?? []) rows.push([name, note, '', '', '', '']);
+  }
+  // Padded columns, as the formatter (biome) writes markdown tables.
+  const widths = rows[0].map((_, c) => Math.max(3, ...rows.map((row) => row[c].length)));
+  const line = (cells) => `| ${cells.map((v, c) => v.padEnd(widths[c])).join(' | ')} |`;
   const lines = [
     START,
     `Measured on ${m.cpu} (${m.cores} cores, ${m.memoryGB} GB), Node ${m.node}, ${m.platform}. Median of the runs, (slowest–fastest) beside it.`,
     '',
-    '| section | measurement | median | spread | runs | parameters |',
-    '|---|---|---|---|---|---|',
+    line(rows[0]),
+    line(widths.map((w) => '-'.repeat(w))),
+    ...rows.slice(1).map(line),
   ];
-  for (const [name, sec] of Object.entries(all.sections)) {
-    for (const r of sec.records) {
-      lines.push(
-        `| ${name} | ${r.label} | ${fmt(r.median)}${r.units} | ${fmt(r.min).trim()}–${fmt(r.max)}${r.units} | ${r.runs} | ${formatParams(r.params)} |`,
-      );
-    }
-    for (const note of sec.notes ?? []) lines.push(`| ${name} | ${note} | | | | |`);
-  }
   lines.push(END);
   const text = readFileSync(README_PATH, 'utf8');
   const a = text.indexOf(START);
