@@ -94,12 +94,22 @@ export SLURM_CONF="$conf"
 slurmctld -i || fail "slurmctld did not start"
 slurmd -N "$node" || fail "slurmd did not start"
 
-# Wait (at most 30 s) until the node is idle.
-for _ in $(seq 1 60); do
-  if [ "$(sinfo -h -n "$node" -o '%T' 2>/dev/null)" = "idle" ]; then
+# Wait (at most 30 s of wall time) until the node is idle; a daemon that
+# exits meanwhile fails at once. Each sinfo is bounded too: it waits for a
+# controller that does not answer.
+alive() {
+  local pidfile="$state/$1.pid"
+  [ ! -f "$pidfile" ] || kill -0 "$(cat "$pidfile")" 2>/dev/null
+}
+deadline=$((SECONDS + 30))
+while [ "$SECONDS" -lt "$deadline" ]; do
+  for daemon in munged slurmctld slurmd; do
+    alive "$daemon" || fail "$daemon exited"
+  done
+  if [ "$(timeout 5 sinfo -h -n "$node" -o '%T' 2>/dev/null)" = "idle" ]; then
     echo "SLURM_CONF=$conf"
     exit 0
   fi
   sleep 0.5
 done
-fail "node $node did not become idle within 30 s (sinfo: $(sinfo -h -o '%N %T' 2>&1 || true))"
+fail "node $node did not become idle within 30 s (sinfo: $(timeout 5 sinfo -h -o '%N %T' 2>&1 || true))"
