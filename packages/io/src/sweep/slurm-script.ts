@@ -30,9 +30,13 @@ export function shellQuote(word: string): string {
  * `intradyne merge OUT` as a job depending on the whole array with
  * `afterany`: the merge runs even when a shard failed and then fails
  * itself, naming the missing shard, instead of waiting forever on a
- * dependency that can never be met. Run by Slurm as an array task, it runs
- * `intradyne sweep INPUT --out OUT --shard auto --jobs $SLURM_CPUS_PER_TASK`.
- * Logs go to `OUT/logs/`, which the submitting branch creates.
+ * dependency that can never be met. Run by Slurm as array task K, it runs
+ * `intradyne sweep INPUT --out OUT --shard K/N --jobs $SLURM_CPUS_PER_TASK`:
+ * the shard count is written into the script rather than read from Slurm
+ * (`--shard auto`), so that a partial re-submission (`sbatch --array=2,5
+ * FILE`, after those tasks failed) still runs shards 2 and 5 of N, and
+ * resumes them from their journals. Logs go to `OUT/logs/`, which the
+ * submitting branch creates.
  * @example writeFileAtomic('lab.slurm', (w) => w(slurmScript({ tasks: 8, cpusPerTask: 4, … })))
  */
 export function slurmScript(o: SlurmScriptOptions): string {
@@ -52,7 +56,9 @@ export function slurmScript(o: SlurmScriptOptions): string {
 # task has ended (afterany: a failed shard makes the merge fail and name it,
 # rather than leave the merge waiting). 'sbatch THIS_FILE' submits the array
 # alone; merge afterwards with the command in the submitting branch below.
-# A shard re-run (sbatch --array=K THIS_FILE) skips the captures it finished.
+# Task K runs shard K of ${o.tasks}: keep the array's ids 0 to ${o.tasks - 1}. To redo some
+# shards (after a failure), 'sbatch --array=K1,K2 THIS_FILE' runs just those,
+# skipping the captures they had finished, then merge again.
 #
 #SBATCH --job-name=intradyne-sweep
 #SBATCH --array=0-${o.tasks - 1}
@@ -80,7 +86,7 @@ if [ -z "\${SLURM_ARRAY_TASK_ID:-}" ]; then
   exit 0
 fi
 
-# Inside array task K: shard K of ${o.tasks} (--shard auto reads SLURM_ARRAY_TASK_*).
-exec "\${INTRADYNE[@]}" sweep "$INPUT" --out "$OUT" --shard auto --jobs "\${SLURM_CPUS_PER_TASK:-1}"${analysis}
+# Inside array task K: shard K of ${o.tasks}.
+exec "\${INTRADYNE[@]}" sweep "$INPUT" --out "$OUT" --shard "$SLURM_ARRAY_TASK_ID/${o.tasks}" --jobs "\${SLURM_CPUS_PER_TASK:-1}"${analysis}
 `;
 }

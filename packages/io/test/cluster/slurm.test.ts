@@ -1,10 +1,12 @@
 import { spawnSync } from 'node:child_process';
-import { existsSync, mkdtempSync, readdirSync, readFileSync, rmSync } from 'node:fs';
+import { cpSync, existsSync, mkdirSync, mkdtempSync, readdirSync, readFileSync, rmSync } from 'node:fs';
 import { createServer } from 'node:net';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { afterAll, describe, expect, it } from 'vitest';
+import { intradyneCommand } from '../../src/cli/sweep.js';
+import { shellQuote } from '../../src/sweep/slurm-script.js';
 import { runBuilt, runMain } from '../support/run-cli.js';
 import { simulateSixteenCaptures } from '../support/sharded-captures.js';
 
@@ -18,7 +20,7 @@ import { simulateSixteenCaptures } from '../support/sharded-captures.js';
 // (a failing beforeAll would count its test as skipped).
 
 const HERE = fileURLToPath(new URL('.', import.meta.url));
-/** Upper bound on the wait for the array and the merge: they take about 15 s on 2 CPUs. */
+/** Upper bound on the wait for a job array (and the merge): the sweep's takes about 15 s on 2 CPUs. */
 const JOBS_TIMEOUT_MS = 100_000;
 
 let work: string;
@@ -57,6 +59,19 @@ function slurm(command: string, args: string[]): string {
   if (r.status !== 0) throw new Error(`${command} ${args.join(' ')} failed (${r.status}): ${r.stderr}\n${logs()}`);
   return r.stdout;
 }
+
+/** Waits until none of the jobs is queued or running (bounded by JOBS_TIMEOUT_MS). */
+async function waitFor(ids: readonly string[], out: string): Promise<void> {
+  const deadline = Date.now() + JOBS_TIMEOUT_MS;
+  while (slurm('squeue', ['-h', '-j', ids.join(','), '-o', '%i %T']).trim() !== '') {
+    if (Date.now() > deadline)
+      throw new Error(`the jobs did not end within ${JOBS_TIMEOUT_MS / 1000} s:\n${slurm('squeue', ['-a'])}\n${logs(out)}`);
+    await new Promise((resolve) => setTimeout(resolve, 500));
+  }
+}
+
+/** The states of a job's tasks; scontrol keeps ended jobs for MinJobAge (600 s in the test's slurm.conf). */
+const states = (id: string) => [...slurm('scontrol', ['show', 'job', id]).matchAll(/JobState=(\w+)/g)].map((m) => m[1]);
 
 afterAll(() => {
   if (state) {
@@ -107,18 +122,9 @@ describe('a sweep as a Slurm job array on a single-node cluster', () => {
     expect(ids, submitted).not.toBeNull();
     const [array, merge] = [ids![1], ids![2]];
 
-    // Wait until neither the array nor the merge is queued or running.
-    const deadline = Date.now() + JOBS_TIMEOUT_MS;
-    while (slurm('squeue', ['-h', '-j', `${array},${merge}`, '-o', '%i %T']).trim() !== '') {
-      if (Date.now() > deadline)
-        throw new Error(`the jobs did not end within ${JOBS_TIMEOUT_MS / 1000} s:\n${slurm('squeue', ['-a'])}\n${logs(out)}`);
-      await new Promise((resolve) => setTimeout(resolve, 500));
-    }
-    // scontrol keeps ended jobs for MinJobAge (600 s in the test's slurm.conf).
-    const states = (id: string) => [...slurm('scontrol', ['show', 'job', id]).matchAll(/JobState=(\w+)/g)].map((m) => m[1]);
-    const report = `${logs(out)}`;
-    expect(states(array), report).toEqual(['COMPLETED', 'COMPLETED', 'COMPLETED', 'COMPLETED']);
-    expect(states(merge), report).toEqual(['COMPLETED']);
+    await waitFor([array, merge], out);
+    expect(states(array), logs(out)).toEqual(['COMPLETED', 'COMPLETED', 'COMPLETED', 'COMPLETED']);
+    expect(states(merge), logs(out)).toEqual(['COMPLETED']);
     expect(
       readFileSync(join(out, 'logs', readdirSync(join(out, 'logs')).find((f) => f.startsWith('merge-'))!), 'utf8'),
     ).toContain('merged 4 shards: 16 captures, failed 0');
@@ -127,5 +133,31 @@ describe('a sweep as a Slurm job array on a single-node cluster', () => {
     expect(readFileSync(join(out, 'results.csv'))).toEqual(single.csv);
     expect(readFileSync(join(out, 'results.arrow'))).toEqual(single.arrow);
     for (const k of [0, 1, 2, 3]) expect(existsSync(join(out, `shard-${k}-of-4`, 'shard.json'))).toBe(true);
+
+    // --shard auto in an array numbered from 1 (--array=1-4): task t is shard t − 1 of 4,
+    // so each task finds the journal of the same shard above and analyses nothing again.
+    const again = join(work, 'again');
+    cpSync(out, again, { recursive: true });
+    for (const k of [0, 1, 2, 3]) rmSync(join(again, `shard-${k}-of-4`, 'shard.json'));
+    rmSync(join(again, 'results.csv'));
+    rmSync(join(again, 'logs'), { recursive: true });
+    mkdirSync(join(again, 'logs'));
+    const [node, main] = intradyneCommand();
+    const auto = slurm('sbatch', [
+      '--parsable',
+      '--array=1-4',
+      '--cpus-per-task=1',
+      `--output=${join(again, 'logs', 'task-%a.out')}`,
+      `--wrap=${[node, main, 'sweep', captures, '--out', again, '--shard', 'auto', '--jobs', '1'].map(shellQuote).join(' ')}`,
+    ]).trim();
+    await waitFor([auto], again);
+    expect(states(auto), logs(again)).toEqual(['COMPLETED', 'COMPLETED', 'COMPLETED', 'COMPLETED']);
+    for (const t of [1, 2, 3, 4]) {
+      const log = readFileSync(join(again, 'logs', `task-${t}.out`), 'utf8');
+      const rows = JSON.parse(readFileSync(join(again, `shard-${t - 1}-of-4`, 'shard.json'), 'utf8')).rows.length;
+      expect(log).toContain(`shard ${t - 1}/4: swept ${rows} captures: analysed 0, skipped ${rows}, failed 0`);
+    }
+    expect((await runMain(['merge', again])).code).toBe(0);
+    expect(readFileSync(join(again, 'results.csv'))).toEqual(single.csv);
   });
 });

@@ -211,8 +211,8 @@ describe('sweep --emit-slurm', () => {
     expect(text).toContain('#SBATCH --cpus-per-task=2\n');
     expect(text).toContain(`#SBATCH --output=${out}/logs/shard-%A_%a.out\n`);
     expect(text).toContain('--dependency="afterany:$array"');
-    // The task's CPUs come from Slurm's variable, expanded by bash in the task.
-    expect(text).toContain(`--shard auto --jobs "$\{SLURM_CPUS_PER_TASK:-1}" --skip 1024\n`);
+    // The task's shard and CPUs come from Slurm's variables, expanded by bash in the task.
+    expect(text).toContain(`--shard "$SLURM_ARRAY_TASK_ID/4" --jobs "$\{SLURM_CPUS_PER_TASK:-1}" --skip 1024\n`);
     expect(text).toContain(`INPUT=${captures}\n`);
     // bash reads it (syntax only: nothing runs).
     const syntax = spawnSync('bash', ['-n', file], { encoding: 'utf8' });
