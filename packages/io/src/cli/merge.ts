@@ -1,6 +1,7 @@
 import { mergeShards } from '../sweep/merge-shards.js';
 import { parseCommandArgs } from './args.js';
 import { EXIT, UsageError } from './errors.js';
+import { printFailures } from './sweep.js';
 
 export const MERGE_HELP = `intradyne merge RESULT_DIR [options]
 
@@ -47,7 +48,7 @@ export function mergeCommand(argv: readonly string[], out: (s: string) => void):
       `merged ${report.shards} shards: ${report.captures} captures, failed ${report.failed}\n` +
         `results: ${report.csvPath}, ${report.arrowPath}\n`,
     );
-    for (const r of report.rows.filter((r) => r.ok !== true)) out(`  ${r.capture}: ${r.failure_check}: ${r.failure_reason}\n`);
+    printFailures(report.rows, out);
   }
   return report.failed > 0 ? EXIT.analysisFailed : EXIT.done;
 }

@@ -3,6 +3,7 @@ import { availableParallelism } from 'node:os';
 import { resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { ProgressBar } from '../sweep/progress.js';
+import type { SweepRow } from '../sweep/result-row.js';
 import { checkSweepOut, defaultSweepOut, runSweep } from '../sweep/run-sweep.js';
 import { inShard, shardLabel } from '../sweep/shard.js';
 import { slurmScript } from '../sweep/slurm-script.js';
@@ -130,9 +131,14 @@ export async function sweepCommand(argv: readonly string[], out: (s: string) => 
         `results: ${report.csvPath}, ${report.arrowPath}\n` +
         (shard ? `when all ${shard.count} shards have finished: intradyne merge ${outDir}\n` : ''),
     );
-    for (const r of report.rows.filter((r) => r.ok !== true)) out(`  ${r.capture}: ${r.failure_check}: ${r.failure_reason}\n`);
+    printFailures(report.rows, out);
   }
   return report.failed > 0 ? EXIT.analysisFailed : EXIT.done;
+}
+
+/** Prints one line per failed row of a table: the capture, the failed check and why. */
+export function printFailures(rows: readonly SweepRow[], out: (s: string) => void): void {
+  for (const r of rows) if (r.ok !== true) out(`  ${r.capture}: ${r.failure_check}: ${r.failure_reason}\n`);
 }
 
 /** The process's stderr writer: the bar redraws in place only when writing there, to a terminal. */

@@ -96,6 +96,40 @@ describe('sweep --shard K/N and merge', () => {
     expect(readFileSync(join(dir, 'shard-2-of-4', 'shard.json'), 'utf8')).toBe(before);
   });
 
+  it('keeps the order of a manifest: two shards of a manifest merge into what one sweep of it gives', async () => {
+    const manifest = join(captures, '..', 'lab.txt');
+    // Four captures listed out of sorted order, one by its descriptor. Their keys hash to
+    // shards 0, 1, 0, 1 (sha256sum), so the merge must interleave the two shards.
+    writeFileSync(
+      manifest,
+      '# chosen runs\ncaptures/osnr-b/run-12.csv\ncaptures/osnr-a/run-03.json\ncaptures/osnr-b/run-09.csv\ncaptures/osnr-a/run-00.csv\n',
+    );
+    const one = join(tempDir(), 'one');
+    const r = await runBuilt(['sweep', manifest, '--jobs', '2', '--out', one]);
+    expect(r.code, r.stderr).toBe(0);
+    const dir = join(tempDir(), 'two');
+    for (const k of [0, 1]) {
+      const s = await runBuilt(['sweep', manifest, '--jobs', '1', '--out', dir, '--shard', `${k}/2`], undefined, NO_SLURM);
+      expect(s.code, s.stderr).toBe(0);
+    }
+    const m = await runMain(['merge', dir]);
+    expect(m.code, m.stderr).toBe(0);
+    expect(m.stdout).toContain('merged 2 shards: 4 captures, failed 0');
+    expect(readFileSync(join(dir, 'results.csv'), 'utf8')).toBe(readFileSync(join(one, 'results.csv'), 'utf8'));
+    expect(readFileSync(join(dir, 'results.arrow'))).toEqual(readFileSync(join(one, 'results.arrow')));
+    const keys = readFileSync(join(dir, 'results.csv'), 'utf8')
+      .trimEnd()
+      .split('\n')
+      .slice(1)
+      .map((l) => l.split(',')[0]);
+    expect(keys).toEqual([
+      'captures/osnr-b/run-12.csv',
+      'captures/osnr-a/run-03.json',
+      'captures/osnr-b/run-09.csv',
+      'captures/osnr-a/run-00.csv',
+    ]);
+  });
+
   it('refuses a missing shard, naming it, and one that did not finish', async () => {
     const dir = shardsCopy();
     rmSync(join(dir, 'shard-2-of-4'), { recursive: true });
