@@ -1,6 +1,6 @@
-import { existsSync } from 'node:fs';
+import { existsSync, mkdirSync } from 'node:fs';
 import { availableParallelism } from 'node:os';
-import { resolve } from 'node:path';
+import { join, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { ProgressBar } from '../sweep/progress.js';
 import type { SweepRow } from '../sweep/result-row.js';
@@ -168,7 +168,12 @@ function analysisArgs(values: Record<string, string | boolean | undefined>): str
   return args;
 }
 
-/** Writes the Slurm script (atomically, never over an existing file) after checking the output folder. */
+/**
+ * Writes the Slurm script (atomically, never over an existing file) after
+ * checking the output folder, and creates the folder's `logs/` (Slurm does
+ * not create the folder of a job's output file, so a plain `sbatch FILE`
+ * needs it).
+ */
 function emitSlurm(
   file: string,
   inputs: SweepInputs,
@@ -189,4 +194,5 @@ function emitSlurm(
     captures: inputs.captures.length,
   });
   writeFileAtomic(file, (append) => append(text));
+  mkdirSync(join(resolve(outDir), 'logs'), { recursive: true });
 }

@@ -35,8 +35,8 @@ export function shellQuote(word: string): string {
  * the shard count is written into the script rather than read from Slurm
  * (`--shard auto`), so that a partial re-submission (`sbatch --array=2,5
  * FILE`, after those tasks failed) still runs shards 2 and 5 of N, and
- * resumes them from their journals. Logs go to `OUT/logs/`, which the
- * submitting branch creates.
+ * resumes them from their journals. Logs go to `OUT/logs/`, which must
+ * exist before Slurm starts a task (the submitting branch creates it).
  * @example writeFileAtomic('lab.slurm', (w) => w(slurmScript({ tasks: 8, cpusPerTask: 4, … })))
  */
 export function slurmScript(o: SlurmScriptOptions): string {

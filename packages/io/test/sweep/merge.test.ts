@@ -1,5 +1,5 @@
 import { spawnSync } from 'node:child_process';
-import { cpSync, existsSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
+import { cpSync, existsSync, mkdtempSync, readdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { tableFromIPC } from 'apache-arrow';
@@ -251,8 +251,10 @@ describe('sweep --emit-slurm', () => {
     // bash reads it (syntax only: nothing runs).
     const syntax = spawnSync('bash', ['-n', file], { encoding: 'utf8' });
     expect(syntax.status, syntax.stderr).toBe(0);
-    // Nothing was analysed or submitted, and the script is never replaced.
-    expect(existsSync(out)).toBe(false);
+    // Nothing was analysed or submitted: the output folder holds only the empty logs folder
+    // Slurm's --output needs. The script is never replaced.
+    expect(readdirSync(out)).toEqual(['logs']);
+    expect(readdirSync(join(out, 'logs'))).toEqual([]);
     const again = await runMain(['sweep', captures, '--out', out, '--emit-slurm', file, '--tasks', '2']);
     expect(again.code).toBe(2);
     expect(again.stderr).toContain('already exists; refusing to overwrite it');
