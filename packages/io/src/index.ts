@@ -16,6 +16,7 @@ export {
   type ArrowWriteOptions,
   type ResultRow,
   writeCaptureArrow,
+  writeEmptyResultsArrow,
   writeResultsArrow,
   writeSymbolsArrow,
 } from './arrow/arrow-write.js';
@@ -63,8 +64,21 @@ export { runSweepTask, type SweepOutcome, type SweepTask } from './sweep/analyze
 export { pipelineFingerprint, settingsFingerprint } from './sweep/fingerprint.js';
 export { captureInputHash } from './sweep/input-hash.js';
 export { JOURNAL_FILE, type JournalEntry, readJournal } from './sweep/journal.js';
-export { RESULT_COLUMNS, type SweepRow } from './sweep/result-row.js';
-export { defaultSweepOut, runSweep, type SweepOptions, type SweepReport } from './sweep/run-sweep.js';
+export { type MergeReport, mergeShards } from './sweep/merge-shards.js';
+export { RESULT_COLUMNS, type SweepRow, TEXT_COLUMNS } from './sweep/result-row.js';
+export { type ResultsTableFiles, writeResultsTable } from './sweep/results-table.js';
+export { checkSweepOut, defaultSweepOut, runSweep, type SweepOptions, type SweepReport } from './sweep/run-sweep.js';
+export { inShard, type ShardSpec, shardFolderName, shardLabel, shardOf } from './sweep/shard.js';
+export {
+  listingFingerprint,
+  type PlacedRow,
+  readShardRecord,
+  SHARD_RECORD_FILE,
+  SHARD_RECORD_FORMAT,
+  type ShardRecord,
+  writeShardRecord,
+} from './sweep/shard-record.js';
+export { type SlurmScriptOptions, shellQuote, slurmScript } from './sweep/slurm-script.js';
 export { readManifest, type SweepCapture, type SweepInputs, sweepInputs } from './sweep/sweep-inputs.js';
 export { type AtomicWriteOptions, OutputExistsError, writeFileAtomic } from './write/atomic.js';
 export { type CaptureCsvOptions, writeCaptureCsv, writeJsonAtomic, writeReferenceCsv } from './write/csv.js';

@@ -95,3 +95,21 @@ export function writeResultsArrow(path: string, rows: readonly ResultRow[], opti
   }
   write(path, new Table(columns), options);
 }
+
+/**
+ * Writes a results table with no rows as Arrow IPC: the columns in the order
+ * given, each UTF-8 ('text') or float64 ('number'), so that a reader sees the
+ * schema of an empty result. Atomic.
+ * @throws OutputExistsError as {@link writeCaptureArrow}
+ */
+export function writeEmptyResultsArrow(
+  path: string,
+  columns: Readonly<Record<string, 'text' | 'number'>>,
+  options: ArrowWriteOptions = {},
+): void {
+  const vectors: Record<string, Vector> = {};
+  for (const [name, kind] of Object.entries(columns))
+    vectors[name] =
+      kind === 'text' ? vectorFromArray([] as string[], new Utf8()) : vectorFromArray([] as number[], new Float64());
+  write(path, new Table(vectors), options);
+}

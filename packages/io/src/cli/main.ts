@@ -6,6 +6,7 @@ import { ANALYZE_HELP, analyzeCommand } from './analyze.js';
 import { DEMO_HELP, demoCommand } from './demo.js';
 import { EXIT, UsageError } from './errors.js';
 import { INSPECT_HELP, inspectCommand } from './inspect.js';
+import { MERGE_HELP, mergeCommand } from './merge.js';
 import { SIMULATE_HELP, simulateCommand } from './simulate.js';
 import { defaultErr, SWEEP_HELP, sweepCommand } from './sweep.js';
 
@@ -17,6 +18,11 @@ const COMMANDS: Record<string, { run: Command; summary: string; help: string }> 
     run: sweepCommand,
     summary: 'analyse every capture of a folder or manifest in parallel into one results table',
     help: SWEEP_HELP,
+  },
+  merge: {
+    run: mergeCommand,
+    summary: "combine the shards of a sweep ('sweep --shard K/N') into its one results table",
+    help: MERGE_HELP,
   },
   simulate: { run: simulateCommand, summary: 'write simulated captures with descriptors and references', help: SIMULATE_HELP },
   inspect: {

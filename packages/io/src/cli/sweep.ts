@@ -1,10 +1,18 @@
+import { existsSync, mkdirSync } from 'node:fs';
 import { availableParallelism } from 'node:os';
+import { join, resolve } from 'node:path';
+import { fileURLToPath } from 'node:url';
 import { ProgressBar } from '../sweep/progress.js';
-import { defaultSweepOut, runSweep } from '../sweep/run-sweep.js';
-import { sweepInputs } from '../sweep/sweep-inputs.js';
+import type { SweepRow } from '../sweep/result-row.js';
+import { checkSweepOut, defaultSweepOut, runSweep } from '../sweep/run-sweep.js';
+import { inShard, shardLabel } from '../sweep/shard.js';
+import { slurmScript } from '../sweep/slurm-script.js';
+import { type SweepInputs, sweepInputs } from '../sweep/sweep-inputs.js';
+import { writeFileAtomic } from '../write/atomic.js';
 import { ANALYSIS_OPTIONS, analysisSettingsFrom } from './analyze.js';
 import { parseCommandArgs, positiveInteger } from './args.js';
 import { EXIT, UsageError } from './errors.js';
+import { parseShard } from './shard-option.js';
 
 export const SWEEP_HELP = `intradyne sweep DIR_OR_MANIFEST [options]
 
@@ -29,6 +37,21 @@ files and settings are unchanged, analyses the others, and rebuilds the
 table from the journal. A capture that cannot be read is a row with check
 'input' and does not stop the sweep.
 
+Split over processes or machines (see docs/cluster.md):
+  --shard K/N           analyse only shard K of N (0 ≤ K < N): the captures whose
+                        key (path relative to the sweep root) has a SHA-256 equal
+                        to K modulo N, the same on every machine; writes
+                        DIR/shard-K-of-N/ (its own journal, table and shard.json);
+                        'intradyne merge DIR' then makes the whole table
+  --shard auto          K and N of this Slurm array task: K = (SLURM_ARRAY_TASK_ID
+                        − SLURM_ARRAY_TASK_MIN) / SLURM_ARRAY_TASK_STEP,
+                        N = SLURM_ARRAY_TASK_COUNT (an evenly stepped --array range)
+  --emit-slurm FILE     write a Slurm job-array script for this sweep to FILE
+                        (never replacing a file) and stop: nothing is analysed
+                        or submitted; review it, then 'bash FILE' submits it
+  --tasks N             with --emit-slurm: array tasks (shards); --jobs then
+                        sets the CPUs per task (default 1)
+
 Options:
   --jobs N              worker threads (default: the number of CPUs, ${availableParallelism()} here)
   --out DIR             output folder (default: <input>-sweep beside the input;
@@ -40,8 +63,8 @@ Options:
   -h, --help            this text
 
 The progress bar and its ETA go to stderr; the summary to stdout.
-Exit codes: 0 every capture analysed, 1 some analysis failed or some capture
-could not be read (see the table), 2 bad usage or input.
+Exit codes: 0 every capture analysed (or the script written), 1 some analysis
+failed or some capture could not be read (see the table), 2 bad usage or input.
 `;
 
 export async function sweepCommand(argv: readonly string[], out: (s: string) => void, err: (s: string) => void): Promise<number> {
@@ -50,6 +73,9 @@ export async function sweepCommand(argv: readonly string[], out: (s: string) => 
     jobs: { type: 'string' },
     out: { type: 'string' },
     json: { type: 'boolean' },
+    shard: { type: 'string' },
+    'emit-slurm': { type: 'string' },
+    tasks: { type: 'string' },
   });
   if (values.help) {
     out(SWEEP_HELP);
@@ -57,13 +83,32 @@ export async function sweepCommand(argv: readonly string[], out: (s: string) => 
   }
   if (positionals.length !== 1)
     throw new UsageError("intradyne sweep: expected one DIR_OR_MANIFEST (see 'intradyne sweep --help')");
-  const jobs = positiveInteger('sweep', 'jobs', values.jobs as string | undefined) ?? availableParallelism();
+  const emit = values['emit-slurm'] as string | undefined;
+  const tasks = positiveInteger('sweep', 'tasks', values.tasks as string | undefined);
+  if (emit !== undefined && values.shard !== undefined)
+    throw new UsageError('intradyne sweep: --emit-slurm writes a script whose tasks choose their shard; give no --shard with it');
+  if (emit !== undefined && tasks === undefined)
+    throw new UsageError('intradyne sweep: --emit-slurm needs --tasks N, the number of array tasks (shards)');
+  if (emit === undefined && tasks !== undefined) throw new UsageError('intradyne sweep: --tasks goes with --emit-slurm FILE');
+  const jobsGiven = positiveInteger('sweep', 'jobs', values.jobs as string | undefined);
+  const shard = values.shard !== undefined ? parseShard(values.shard as string, process.env) : undefined;
   const settings = analysisSettingsFrom('sweep', values);
   const inputs = sweepInputs(positionals[0]);
   const outDir = (values.out as string | undefined) ?? defaultSweepOut(positionals[0], inputs.kind);
-  const bar = new ProgressBar(inputs.captures.length, err, process.stderr.isTTY === true && err === defaultErr);
-  err(`sweeping ${inputs.captures.length} captures of ${positionals[0]} on ${Math.min(jobs, inputs.captures.length)} threads\n`);
-  const report = await runSweep(inputs, { out: outDir, jobs, settings, onProgress: (k, a) => bar.tick(k, a) });
+  if (emit !== undefined) {
+    emitSlurm(emit, inputs, positionals[0], outDir, tasks!, jobsGiven ?? 1, values);
+    out(
+      `wrote ${emit}: ${inputs.captures.length} captures in ${tasks} array tasks; review it, then submit it with 'bash ${emit}'\n`,
+    );
+    return EXIT.done;
+  }
+  const jobs = jobsGiven ?? availableParallelism();
+  const part = shard ? inShard(inputs.captures, shard).length : inputs.captures.length;
+  const bar = new ProgressBar(part, err, process.stderr.isTTY === true && err === defaultErr);
+  err(
+    `sweeping ${part} captures of ${positionals[0]}${shard ? ` (shard ${shardLabel(shard)} of ${inputs.captures.length})` : ''} on ${Math.max(1, Math.min(jobs, part))} threads\n`,
+  );
+  const report = await runSweep(inputs, { out: outDir, jobs, settings, shard, onProgress: (k, a) => bar.tick(k, a) });
   bar.finish();
   if (values.json) {
     out(
@@ -72,7 +117,8 @@ export async function sweepCommand(argv: readonly string[], out: (s: string) => 
         analysed: report.analysed,
         skipped: report.skipped,
         failed: report.failed,
-        out: outDir,
+        out: report.out,
+        ...(shard ? { shard: shardLabel(shard), record: report.recordPath } : {}),
         csv: report.csvPath,
         arrow: report.arrowPath,
         journal: report.journalPath,
@@ -81,13 +127,72 @@ export async function sweepCommand(argv: readonly string[], out: (s: string) => 
     );
   } else {
     out(
-      `swept ${report.captures} captures: analysed ${report.analysed}, skipped ${report.skipped}, failed ${report.failed}\n` +
-        `results: ${report.csvPath}, ${report.arrowPath}\n`,
+      `${shard ? `shard ${shardLabel(shard)}: ` : ''}swept ${report.captures} captures: analysed ${report.analysed}, skipped ${report.skipped}, failed ${report.failed}\n` +
+        `results: ${report.csvPath}, ${report.arrowPath}\n` +
+        (shard ? `when all ${shard.count} shards have finished: intradyne merge ${outDir}\n` : ''),
     );
-    for (const r of report.rows.filter((r) => r.ok !== true)) out(`  ${r.capture}: ${r.failure_check}: ${r.failure_reason}\n`);
+    printFailures(report.rows, out);
   }
   return report.failed > 0 ? EXIT.analysisFailed : EXIT.done;
 }
 
+/** Prints one line per failed row of a table: the capture, the failed check and why. */
+export function printFailures(rows: readonly SweepRow[], out: (s: string) => void): void {
+  for (const r of rows) if (r.ok !== true) out(`  ${r.capture}: ${r.failure_check}: ${r.failure_reason}\n`);
+}
+
 /** The process's stderr writer: the bar redraws in place only when writing there, to a terminal. */
 export const defaultErr = (s: string) => void process.stderr.write(s);
+
+/**
+ * The command that runs intradyne here: node and the built main.js (beside
+ * this module when built; the package's dist when running from the sources).
+ */
+export function intradyneCommand(): string[] {
+  const beside = fileURLToPath(new URL('./main.js', import.meta.url));
+  const main = existsSync(beside) ? beside : fileURLToPath(new URL('../../dist/cli/main.js', import.meta.url));
+  return [process.execPath, main];
+}
+
+/**
+ * The sweep's analysis options as command-line words, for the script's tasks
+ * (a pipeline file as an absolute path, since tasks may start elsewhere).
+ */
+function analysisArgs(values: Record<string, string | boolean | undefined>): string[] {
+  const args: string[] = [];
+  for (const name of Object.keys(ANALYSIS_OPTIONS)) {
+    const v = values[name];
+    if (v === true) args.push(`--${name}`);
+    else if (typeof v === 'string') args.push(`--${name}`, name === 'pipeline' ? resolve(v) : v);
+  }
+  return args;
+}
+
+/**
+ * Writes the Slurm script (atomically, never over an existing file) after
+ * checking the output folder, and creates the folder's `logs/` (Slurm does
+ * not create the folder of a job's output file, so a plain `sbatch FILE`
+ * needs it).
+ */
+function emitSlurm(
+  file: string,
+  inputs: SweepInputs,
+  input: string,
+  outDir: string,
+  tasks: number,
+  cpusPerTask: number,
+  values: Record<string, string | boolean | undefined>,
+): void {
+  checkSweepOut(inputs, outDir);
+  const text = slurmScript({
+    tasks,
+    cpusPerTask,
+    command: intradyneCommand(),
+    input: resolve(input),
+    out: resolve(outDir),
+    analysisArgs: analysisArgs(values),
+    captures: inputs.captures.length,
+  });
+  writeFileAtomic(file, (append) => append(text));
+  mkdirSync(join(resolve(outDir), 'logs'), { recursive: true });
+}

@@ -47,6 +47,17 @@ export const RESULT_COLUMNS = [
 ] as const;
 
 export type ResultColumn = (typeof RESULT_COLUMNS)[number];
+
+/** The columns that hold text; the others hold numbers (`ok` as 1/0 in Arrow). */
+export const TEXT_COLUMNS: ReadonlySet<ResultColumn> = new Set<ResultColumn>([
+  'capture',
+  'modulation',
+  'failure_check',
+  'failure_reason',
+  'input_sha256',
+  'samples_sha256',
+  'pipeline_sha256',
+]);
 export type SweepRow = Readonly<Record<ResultColumn, number | string | boolean | null>> & ResultRow;
 
 type Figures = { ber: number | null; snrDb: number | null; gmi: number | null };

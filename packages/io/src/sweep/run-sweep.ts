@@ -1,5 +1,6 @@
-import { mkdirSync } from 'node:fs';
+import { mkdirSync, rmSync } from 'node:fs';
 import { join, relative, resolve } from 'node:path';
+import { LIBRARY_VERSION } from '@intradyne/core';
 import type { AnalysisSettings } from '../analysis/analyze-file.js';
 import { descriptorPathFor } from '../capture/capture.js';
 import { InputError } from '../errors/input-error.js';
@@ -7,13 +8,21 @@ import type { SweepOutcome, SweepTask } from './analyze-task.js';
 import { settingsFingerprint } from './fingerprint.js';
 import { appendJournal, closeTornLine, JOURNAL_FILE, latestEntries, readJournal } from './journal.js';
 import type { SweepRow } from './result-row.js';
-import { writeResultsCsv, writeResultsTableArrow } from './results-table.js';
+import { writeResultsTable } from './results-table.js';
+import { inShard, type ShardSpec, shardFolderName } from './shard.js';
+import { listingFingerprint, SHARD_RECORD_FILE, SHARD_RECORD_FORMAT, writeShardRecord } from './shard-record.js';
 import type { SweepInputs } from './sweep-inputs.js';
 import { runOnWorkers } from './worker-pool.js';
 
 export interface SweepOptions {
-  /** Output folder: results.csv, results.arrow and the journal. */
+  /** Output folder: results.csv, results.arrow and the journal (for a shard, in its subfolder). */
   readonly out: string;
+  /**
+   * Analyse only this shard's captures (see `shardOf`), into the subfolder
+   * `shard-K-of-N` of `out`, which then also gets the shard record
+   * (`shard.json`) that `mergeShards` reads.
+   */
+  readonly shard?: ShardSpec;
   /** Worker threads (≥ 1). */
   readonly jobs: number;
   readonly settings: AnalysisSettings;
@@ -24,6 +33,10 @@ export interface SweepOptions {
 /** What a sweep did. */
 export interface SweepReport {
   readonly captures: number;
+  /** The folder written: `out`, or the shard's subfolder of it. */
+  readonly out: string;
+  /** The shard record written (for a shard only). */
+  readonly recordPath?: string;
   /** Captures analysed in this run. */
   readonly analysed: number;
   /** Captures whose stored row was reused (same input hash, same settings). */
@@ -49,17 +62,11 @@ const inside = (dir: string, p: string) => {
 };
 
 /**
- * Analyses every capture of a sweep on worker threads and writes the
- * results table (CSV and Arrow) into `out`. Resumable: each finished
- * capture's row is appended to `out/journal.jsonl` with its input hash and
- * the settings fingerprint; a capture whose latest stored row has the hash
- * of its files now and the same settings is skipped. The table is then
- * rebuilt from the stored rows, in the sweep's order.
- * @throws InputError when `out` is the swept folder, lies inside it, or
- *   holds an input file
+ * Refuses an output folder that is the swept folder, lies inside it, or
+ * holds an input file.
+ * @throws InputError naming the folder and why
  */
-export async function runSweep(inputs: SweepInputs, options: SweepOptions): Promise<SweepReport> {
-  const { out } = options;
+export function checkSweepOut(inputs: SweepInputs, out: string): void {
   if (inputs.kind === 'folder' && inside(inputs.root, out)) {
     throw new InputError(
       { file: out },
@@ -72,12 +79,32 @@ export async function runSweep(inputs: SweepInputs, options: SweepOptions): Prom
     if (inside(out, c.path) || inside(out, descriptorPathFor(c.path)))
       throw new InputError({ file: out }, 'output folder', 'a folder holding no capture of the sweep', `one holding ${c.path}`);
   }
+}
+
+/**
+ * Analyses every capture of a sweep (or of one shard of it) on worker
+ * threads and writes the results table (CSV and Arrow) into `out` (for a
+ * shard, into its subfolder, with its shard record last). Resumable: each
+ * finished capture's row is appended to `journal.jsonl` there with its input
+ * hash and the settings fingerprint; a capture whose latest stored row has
+ * the hash of its files now and the same settings is skipped. The table is
+ * then rebuilt from the stored rows, in the sweep's order.
+ * @throws InputError when `out` is the swept folder, lies inside it, or
+ *   holds an input file
+ */
+export async function runSweep(inputs: SweepInputs, options: SweepOptions): Promise<SweepReport> {
+  checkSweepOut(inputs, options.out);
+  const { shard } = options;
+  const captures = shard ? inShard(inputs.captures, shard) : inputs.captures;
+  const out = shard ? join(options.out, shardFolderName(shard)) : options.out;
   mkdirSync(out, { recursive: true });
+  // A shard is unfinished (for the merge) until this run writes its record again.
+  if (shard) rmSync(join(out, SHARD_RECORD_FILE), { force: true });
   const journalPath = join(out, JOURNAL_FILE);
   closeTornLine(journalPath);
   const settingsSha256 = settingsFingerprint(options.settings);
   const stored = latestEntries(readJournal(journalPath), settingsSha256);
-  const tasks: SweepTask[] = inputs.captures.map((c) => ({
+  const tasks: SweepTask[] = captures.map((c) => ({
     key: c.key,
     path: c.path,
     storedInputSha256: stored.get(c.key)?.inputSha256 ?? null,
@@ -100,17 +127,31 @@ export async function runSweep(inputs: SweepInputs, options: SweepOptions): Prom
   // Rebuild from the store (the journal as now written), in the sweep's order;
   // a row that could not be stored (an unexpected error) comes from this run.
   const now = latestEntries(readJournal(journalPath), settingsSha256);
-  const table = inputs.captures.map((c) => {
+  const table = captures.map((c) => {
     const mine = rows.get(c.key)!;
     const entry = now.get(c.key);
     return entry && entry.inputSha256 === mine.input_sha256 ? entry.row : mine;
   });
-  const csvPath = join(out, 'results.csv');
-  const arrowPath = join(out, 'results.arrow');
-  writeResultsCsv(csvPath, table);
-  writeResultsTableArrow(arrowPath, table);
+  const { csvPath, arrowPath } = writeResultsTable(out, table);
+  let recordPath: string | undefined;
+  if (shard) {
+    // Written last: its presence tells the merge that the shard finished.
+    const position = new Map(inputs.captures.map((c, i) => [c.key, i]));
+    recordPath = writeShardRecord(out, {
+      format: SHARD_RECORD_FORMAT,
+      shard: shard.index,
+      shards: shard.count,
+      version: LIBRARY_VERSION,
+      settingsSha256,
+      settings: options.settings,
+      input: { kind: inputs.kind, captures: inputs.captures.length, listingSha256: listingFingerprint(inputs) },
+      rows: table.map((row, i) => ({ position: position.get(captures[i].key)!, row })),
+    });
+  }
   return {
     captures: table.length,
+    out,
+    recordPath,
     analysed,
     skipped,
     failed: table.filter((r) => r.ok !== true).length,

@@ -49,15 +49,20 @@ export const BUILT_CLI = fileURLToPath(new URL('../../dist/cli/main.js', import.
 
 /**
  * Runs the built command in a child process (worker threads need the built
- * JavaScript). `onStart` receives the child, to kill it part-way.
+ * JavaScript). `onStart` receives the child, to kill it part-way; `env`
+ * adds (or, with undefined, removes) environment variables.
  */
 export function runBuilt(
   argv: readonly string[],
   onStart?: (kill: () => void) => void,
+  env: Readonly<Record<string, string | undefined>> = {},
 ): Promise<CliRun & { signal: string | null }> {
   if (!existsSync(BUILT_CLI)) throw new Error(`${BUILT_CLI} is missing: build first (npx -y pnpm@12.4.2 build)`);
   return new Promise((resolve, reject) => {
-    const child = spawn(process.execPath, [BUILT_CLI, ...argv], { stdio: ['ignore', 'pipe', 'pipe'] });
+    const child = spawn(process.execPath, [BUILT_CLI, ...argv], {
+      stdio: ['ignore', 'pipe', 'pipe'],
+      env: { ...process.env, ...env },
+    });
     let stdout = '';
     let stderr = '';
     child.stdout.on('data', (d) => {

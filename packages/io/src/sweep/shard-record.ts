@@ -1,0 +1,93 @@
+import { readFileSync } from 'node:fs';
+import { join } from 'node:path';
+import { Sha256 } from '@intradyne/core';
+import type { AnalysisSettings } from '../analysis/analyze-file.js';
+import { InputError } from '../errors/input-error.js';
+import { writeJsonAtomic } from '../write/csv.js';
+import type { SweepRow } from './result-row.js';
+import type { SweepInputs } from './sweep-inputs.js';
+
+/** The file a finished shard writes into its folder, last, atomically: its rows and what made them. */
+export const SHARD_RECORD_FILE = 'shard.json';
+
+/** The value of a shard record's `format` field. */
+export const SHARD_RECORD_FORMAT = 'intradyne sweep shard, version 1';
+
+/** A row of a shard with its place in the whole sweep's order. */
+export interface PlacedRow {
+  /** 0-based position of the capture in the sweep's order (sorted folder keys, or the manifest's order). */
+  readonly position: number;
+  readonly row: SweepRow;
+}
+
+/**
+ * What a finished shard of a sweep leaves for the merge: which shard it is,
+ * the library version and settings it ran with, what the whole sweep was
+ * (so that shards of different inputs are not merged) and its rows.
+ */
+export interface ShardRecord {
+  readonly format: typeof SHARD_RECORD_FORMAT;
+  /** Shard index, 0 ≤ shard < shards. */
+  readonly shard: number;
+  readonly shards: number;
+  /** The library version (`LIBRARY_VERSION`) the shard ran with. */
+  readonly version: string;
+  /** `settingsFingerprint` of the settings (covers the version too). */
+  readonly settingsSha256: string;
+  readonly settings: AnalysisSettings;
+  /** The whole sweep: folder or manifest, its number of captures, and {@link listingFingerprint} of its keys. */
+  readonly input: { readonly kind: SweepInputs['kind']; readonly captures: number; readonly listingSha256: string };
+  /** The shard's rows, in the sweep's order. */
+  readonly rows: readonly PlacedRow[];
+}
+
+const UTF8 = new TextEncoder();
+
+/**
+ * SHA-256 (hex) of a sweep's capture keys in its order, one per line: equal
+ * for two shards of the same folder or manifest on any machine (the keys are
+ * relative to the sweep root).
+ */
+export function listingFingerprint(inputs: SweepInputs): string {
+  return new Sha256().update(UTF8.encode(inputs.captures.map((c) => `${c.key}\n`).join(''))).hex();
+}
+
+/** Writes a shard's record into its folder, atomically, replacing an earlier one. */
+export function writeShardRecord(dir: string, record: ShardRecord): string {
+  const path = join(dir, SHARD_RECORD_FILE);
+  writeJsonAtomic(path, record, { overwrite: true });
+  return path;
+}
+
+const isWhole = (v: unknown): v is number => typeof v === 'number' && Number.isSafeInteger(v) && v >= 0;
+
+/**
+ * Reads and checks a shard record.
+ * @throws InputError naming the file and the field that is missing or wrong
+ */
+export function readShardRecord(path: string): ShardRecord {
+  let doc: Record<string, unknown>;
+  try {
+    doc = JSON.parse(readFileSync(path, 'utf8'));
+  } catch (e) {
+    throw new InputError({ file: path }, 'shard record', 'a readable JSON file written by a sharded sweep', (e as Error).message);
+  }
+  const bad = (field: string, expected: string) =>
+    new InputError({ file: path }, `field '${field}'`, expected, JSON.stringify(doc?.[field] ?? null).slice(0, 80));
+  if (doc === null || typeof doc !== 'object') throw new InputError({ file: path }, 'shard record', 'a JSON object', String(doc));
+  if (doc.format !== SHARD_RECORD_FORMAT) throw bad('format', JSON.stringify(SHARD_RECORD_FORMAT));
+  if (!isWhole(doc.shards) || doc.shards < 1) throw bad('shards', 'a positive whole number');
+  if (!isWhole(doc.shard) || doc.shard >= doc.shards) throw bad('shard', `a whole number below shards (${doc.shards})`);
+  if (typeof doc.version !== 'string') throw bad('version', 'the library version');
+  if (typeof doc.settingsSha256 !== 'string') throw bad('settingsSha256', 'a SHA-256 in hex');
+  if (doc.settings === null || typeof doc.settings !== 'object') throw bad('settings', 'the analysis settings');
+  const input = doc.input as Record<string, unknown> | null;
+  if (input === null || typeof input !== 'object' || !isWhole(input.captures) || typeof input.listingSha256 !== 'string')
+    throw bad('input', 'the sweep input: { kind, captures, listingSha256 }');
+  if (!Array.isArray(doc.rows)) throw bad('rows', 'an array of { position, row }');
+  for (const r of doc.rows as { position?: unknown; row?: { capture?: unknown } }[]) {
+    if (!isWhole(r?.position) || typeof r.row?.capture !== 'string')
+      throw new InputError({ file: path }, 'rows', 'entries { position, row } with a capture', JSON.stringify(r).slice(0, 80));
+  }
+  return doc as unknown as ShardRecord;
+}
