@@ -34,6 +34,7 @@ export { type PhaseKernel, runKernel } from './carrier/phase-kernel.js';
 export {
   type BlindPhaseSearchStageOptions,
   blindPhaseSearch,
+  PHASE_TRACE_POINTS,
   type PhaseRecoveryDiagnostics,
   type PhaseRecoveryOptions,
   type ViterbiViterbiStageOptions,
@@ -94,6 +95,7 @@ export * from './modulation/constellation.js';
 export * from './physics/jones.js';
 export * from './physics/link.js';
 export * from './pipeline/blocks.js';
+export * from './pipeline/decimated-trace.js';
 export * from './pipeline/pipe.js';
 export * from './pipeline/stage.js';
 export * from './prbs/prbs.js';
