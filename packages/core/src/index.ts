@@ -62,6 +62,7 @@ export {
 } from './dispersion/compensate-dispersion.js';
 export { cdTapCount, dispersionCompensationResponse } from './dispersion/dispersion-filter.js';
 export { OverlapSave, overlapSaveSize, responseOfCenteredTaps } from './dispersion/overlap-save.js';
+export * from './dsp/channel-spectra.js';
 export * from './dsp/fft.js';
 export { besselI0, kaiserBeta, kaiserOrder, kaiserWindow } from './dsp/kaiser.js';
 export * from './dsp/rrc.js';
