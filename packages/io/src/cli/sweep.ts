@@ -33,6 +33,8 @@ Options:
   --jobs N              worker threads (default: the number of CPUs, ${availableParallelism()} here)
   --out DIR             output folder (default: <input>-sweep beside the input;
                         never the swept folder or inside it)
+  --report FILE         also write a self-contained HTML report of the table there
+                        (BER and GMI/NGMI against SNR with theory and FEC limits)
   --json                print the summary and the rows as one JSON object
   and every analysis option of 'intradyne analyze' (applied to every capture):
   --modulation M, --symbol-rate BD, --sample-rate SAS, --roll-off B,
@@ -49,6 +51,7 @@ export async function sweepCommand(argv: readonly string[], out: (s: string) => 
     ...ANALYSIS_OPTIONS,
     jobs: { type: 'string' },
     out: { type: 'string' },
+    report: { type: 'string' },
     json: { type: 'boolean' },
   });
   if (values.help) {
@@ -63,7 +66,13 @@ export async function sweepCommand(argv: readonly string[], out: (s: string) => 
   const outDir = (values.out as string | undefined) ?? defaultSweepOut(positionals[0], inputs.kind);
   const bar = new ProgressBar(inputs.captures.length, err, process.stderr.isTTY === true && err === defaultErr);
   err(`sweeping ${inputs.captures.length} captures of ${positionals[0]} on ${Math.min(jobs, inputs.captures.length)} threads\n`);
-  const report = await runSweep(inputs, { out: outDir, jobs, settings, onProgress: (k, a) => bar.tick(k, a) });
+  const report = await runSweep(inputs, {
+    out: outDir,
+    jobs,
+    settings,
+    report: values.report as string | undefined,
+    onProgress: (k, a) => bar.tick(k, a),
+  });
   bar.finish();
   if (values.json) {
     out(
@@ -76,13 +85,14 @@ export async function sweepCommand(argv: readonly string[], out: (s: string) => 
         csv: report.csvPath,
         arrow: report.arrowPath,
         journal: report.journalPath,
+        report: report.reportPath,
         rows: report.rows,
       })}\n`,
     );
   } else {
     out(
       `swept ${report.captures} captures: analysed ${report.analysed}, skipped ${report.skipped}, failed ${report.failed}\n` +
-        `results: ${report.csvPath}, ${report.arrowPath}\n`,
+        `results: ${report.csvPath}, ${report.arrowPath}${report.reportPath ? `, report ${report.reportPath}` : ''}\n`,
     );
     for (const r of report.rows.filter((r) => r.ok !== true)) out(`  ${r.capture}: ${r.failure_check}: ${r.failure_reason}\n`);
   }

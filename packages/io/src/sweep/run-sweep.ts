@@ -1,5 +1,6 @@
 import { mkdirSync } from 'node:fs';
 import { join, relative, resolve } from 'node:path';
+import { LIBRARY_VERSION } from '@intradyne/core';
 import type { AnalysisSettings } from '../analysis/analyze-file.js';
 import { descriptorPathFor } from '../capture/capture.js';
 import { InputError } from '../errors/input-error.js';
@@ -7,8 +8,8 @@ import type { SweepOutcome, SweepTask } from './analyze-task.js';
 import { settingsFingerprint } from './fingerprint.js';
 import { appendJournal, closeTornLine, JOURNAL_FILE, latestEntries, readJournal } from './journal.js';
 import type { SweepRow } from './result-row.js';
-import { writeResultsCsv, writeResultsTableArrow } from './results-table.js';
 import type { SweepInputs } from './sweep-inputs.js';
+import { writeSweepOutputs } from './sweep-outputs.js';
 import { runOnWorkers } from './worker-pool.js';
 
 export interface SweepOptions {
@@ -17,6 +18,8 @@ export interface SweepOptions {
   /** Worker threads (≥ 1). */
   readonly jobs: number;
   readonly settings: AnalysisSettings;
+  /** Also write the HTML report of the final rows there. */
+  readonly report?: string;
   /** Called on the main thread as each capture finishes (for a progress bar). */
   readonly onProgress?: (key: string, analysed: boolean) => void;
 }
@@ -33,6 +36,8 @@ export interface SweepReport {
   readonly csvPath: string;
   readonly arrowPath: string;
   readonly journalPath: string;
+  /** The HTML report, when asked for. */
+  readonly reportPath: string | null;
   /** The table, one row per capture in the sweep's order. */
   readonly rows: readonly SweepRow[];
 }
@@ -105,10 +110,20 @@ export async function runSweep(inputs: SweepInputs, options: SweepOptions): Prom
     const entry = now.get(c.key);
     return entry && entry.inputSha256 === mine.input_sha256 ? entry.row : mine;
   });
-  const csvPath = join(out, 'results.csv');
-  const arrowPath = join(out, 'results.arrow');
-  writeResultsCsv(csvPath, table);
-  writeResultsTableArrow(arrowPath, table);
+  const report = options.report
+    ? {
+        path: options.report,
+        context: {
+          source: inputs.root,
+          library: 'intradyne',
+          version: LIBRARY_VERSION,
+          settings: options.settings,
+          settingsSha256,
+        },
+        inputs: inputs.captures.flatMap((c) => [c.path, descriptorPathFor(c.path)]),
+      }
+    : undefined;
+  const { csvPath, arrowPath, reportPath } = writeSweepOutputs(out, table, report);
   return {
     captures: table.length,
     analysed,
@@ -117,6 +132,7 @@ export async function runSweep(inputs: SweepInputs, options: SweepOptions): Prom
     csvPath,
     arrowPath,
     journalPath,
+    reportPath,
     rows: table,
   };
 }

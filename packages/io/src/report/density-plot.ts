@@ -1,0 +1,61 @@
+import { constellation } from '@intradyne/core';
+import type { ConstellationHistogram } from '@intradyne/metrics';
+import { frame, plotSvg } from './axes.js';
+import { dots } from './marks.js';
+import { el, type Markup } from './svg.js';
+import { rampColour, THEME } from './theme.js';
+
+/**
+ * The constellation density of one polarization: one square `rect.cell`
+ * per grid cell holding symbols, coloured by log(1 + count)/log(1 + max) so
+ * that sparse outliers stay visible beside dense clouds, and the M ideal
+ * points (`circle.ideal`) scaled by `gain` (the received amplitude of a
+ * unit-power constellation point; 1 when unknown).
+ */
+export function densityPlot(h: ConstellationHistogram, pol: 'x' | 'y', gain: number): Markup {
+  const size = 340;
+  const e = h.extent;
+  const f = frame(
+    { width: size, height: size + 10, margin: { top: 30, right: 14, bottom: 50, left: 54 } },
+    { domain: [-e, e], label: 'in-phase', tickCount: 4 },
+    { domain: [-e, e], label: 'quadrature', tickCount: 4 },
+  );
+  const counts = h[pol];
+  let max = 0;
+  for (const c of counts) if (c > max) max = c;
+  const w = (2 * e) / h.bins;
+  const norm = Math.log1p(max);
+  const cells: Markup[] = [];
+  for (let r = 0; r < h.bins; r++) {
+    for (let c = 0; c < h.bins; c++) {
+      const n = counts[r * h.bins + c];
+      if (n === 0) continue;
+      const left = f.x.map(-e + c * w);
+      const top = f.y.map(-e + (r + 1) * w);
+      // A hair wider than the cell so that anti-aliasing leaves no seams between neighbours.
+      cells.push(
+        el('rect', {
+          class: 'cell',
+          x: left,
+          y: top,
+          width: f.x.map(-e + (c + 1) * w) - left + 0.4,
+          height: f.y.map(-e + r * w) - top + 0.4,
+          fill: rampColour(Math.log1p(n) / norm),
+        }),
+      );
+    }
+  }
+  const points = constellation(h.modulation).points;
+  const g = gain > 0 && Number.isFinite(gain) ? gain : 1;
+  const px: number[] = [];
+  const py: number[] = [];
+  for (let k = 0; k < points.length; k += 2) {
+    px.push(g * points[k]);
+    py.push(g * points[k + 1]);
+  }
+  return plotSvg(f, { kind: 'density', title: `Polarization ${pol}: recovered symbols`, data: { pol } }, [
+    el('rect', { x: f.x0, y: f.y0, width: f.x1 - f.x0, height: f.y1 - f.y0, fill: THEME.panel }),
+    el('g', { class: 'cells' }, ...cells),
+    el('g', { class: 'ideal-points' }, dots(f, px, py, { colour: THEME.ideal, cls: 'ideal', radius: 3.6, hollow: true })),
+  ]);
+}
