@@ -154,14 +154,22 @@ export interface LegendEntry {
   readonly kind: 'line' | 'dash' | 'dot' | 'ring';
 }
 
-/** A legend in the top-right corner of the inner area, one entry per line. */
-export function legend(f: Frame, entries: readonly LegendEntry[], corner: 'top-right' | 'bottom-left' = 'top-right'): Markup {
+/** Where a legend sits inside the plot area. */
+export type LegendCorner = 'top-right' | 'bottom-left' | 'bottom-right' | 'outside';
+
+/** Width a legend of these entries takes, pixels. */
+export function legendWidth(entries: readonly LegendEntry[]): number {
+  return 30 + 6.4 * Math.max(0, ...entries.map((e) => e.label.length));
+}
+
+/** A legend in a corner of the inner area, one entry per line. */
+export function legend(f: Frame, entries: readonly LegendEntry[], corner: LegendCorner = 'top-right'): Markup {
   if (entries.length === 0) return join([]);
-  const longest = Math.max(...entries.map((e) => e.label.length));
-  const w = 30 + 6.4 * longest;
+  const w = legendWidth(entries);
   const h = 8 + 16 * entries.length;
-  const x = corner === 'top-right' ? f.x1 - w - 6 : f.x0 + 6;
-  const y = corner === 'top-right' ? f.y0 + 6 : f.y1 - h - 6;
+  // 'outside' sits right of the plot area, in the room the caller left in the right margin.
+  const x = corner === 'outside' ? f.x1 + 10 : corner === 'bottom-left' ? f.x0 + 6 : f.x1 - w - 6;
+  const y = corner === 'top-right' || corner === 'outside' ? f.y0 + 6 : f.y1 - h - 6;
   const rows = entries.map((e, i) => {
     const cy = y + 12 + 16 * i;
     const mark =

@@ -1,4 +1,4 @@
-import { type AxisSpec, frame, type LegendEntry, legend, type PlotBox, plotSvg } from './axes.js';
+import { type AxisSpec, frame, type LegendCorner, type LegendEntry, legend, legendWidth, type PlotBox, plotSvg } from './axes.js';
 import { dots, errorBar, horizontalRule, line, verticalMarker } from './marks.js';
 import { formatTick, niceDomain, niceTicks } from './scale.js';
 import { el, type Markup, text } from './svg.js';
@@ -47,7 +47,9 @@ export interface LinePlotSpec {
   readonly errorBars?: readonly { readonly x: number; readonly lo: number; readonly hi: number; readonly colour: string }[];
   /** A second x axis along the top: the same positions labelled x + shift (e.g. OSNR over SNR). */
   readonly topAxis?: { readonly label: string; readonly shift: number };
-  readonly legendCorner?: 'top-right' | 'bottom-left';
+  readonly legendCorner?: LegendCorner;
+  /** Legend entries to show instead of one per listed series. */
+  readonly legend?: readonly LegendEntry[];
   readonly data?: Readonly<Record<string, string>>;
 }
 
@@ -61,9 +63,25 @@ const BOX: PlotBox = { width: 560, height: 320 };
  * @throws RangeError for an empty or non-positive log domain given explicitly
  */
 export function linePlot(spec: LinePlotSpec): Markup {
+  const colourOf = (s: LineSeries, i: number) => s.colour ?? THEME.series[i % THEME.series.length];
+  const entries: readonly LegendEntry[] =
+    spec.legend ??
+    spec.series
+      .map((s, i) => ({ s, i }))
+      .filter(({ s }) => !s.unlisted && s.x.length > 0)
+      .map(({ s, i }) => ({
+        label: s.name,
+        colour: colourOf(s, i),
+        kind: s.line === false ? (s.hollow ? 'ring' : 'dot') : s.dashed ? 'dash' : 'line',
+      }));
   const topRoom = spec.topAxis ? 22 : 0;
   const base = spec.box ?? BOX;
-  const box: PlotBox = { ...base, margin: { top: 30 + topRoom, right: 18, bottom: 46, left: 62 } };
+  const outside = spec.legendCorner === 'outside' && entries.length > 1 ? legendWidth(entries) + 16 : 0;
+  const box: PlotBox = {
+    width: base.width + outside,
+    height: base.height,
+    margin: { top: 30 + topRoom, right: 18 + outside, bottom: 46, left: 62 },
+  };
   const xs = (s: LineSeries) => Array.from(s.x);
   const ys = (s: LineSeries) => Array.from(s.y);
   const extraY = [...(spec.rules ?? []).map((r) => r.y), ...(spec.errorBars ?? []).flatMap((b) => [b.lo, b.hi])];
@@ -81,7 +99,7 @@ export function linePlot(spec: LinePlotSpec): Markup {
   const content: Markup[] = [];
   for (const r of spec.rules ?? []) content.push(horizontalRule(f, r.y, r.label, r.colour ?? THEME.threshold, 'rule'));
   for (const m of spec.markers ?? []) content.push(verticalMarker(f, m.x, m.label, THEME.threshold, 'marker'));
-  const colours = spec.series.map((s, i) => s.colour ?? THEME.series[i % THEME.series.length]);
+  const colours = spec.series.map(colourOf);
   for (const b of spec.errorBars ?? []) content.push(errorBar(f, b.x, b.lo, b.hi, b.colour));
   spec.series.forEach((s, i) => {
     const parts: Markup[] = [];
@@ -89,16 +107,8 @@ export function linePlot(spec: LinePlotSpec): Markup {
     if (s.dots) parts.push(dots(f, s.x, s.y, { colour: colours[i], cls: s.dots, radius: 3, hollow: s.hollow }));
     content.push(el('g', { class: 'series', 'data-series': s.name }, ...parts));
   });
-  const entries: LegendEntry[] = spec.series
-    .map((s, i) => ({ s, i }))
-    .filter(({ s }) => !s.unlisted)
-    .map(({ s, i }) => ({
-      label: s.name,
-      colour: colours[i],
-      kind: s.line === false ? (s.hollow ? 'ring' : 'dot') : s.dashed ? 'dash' : 'line',
-    }));
   const overlay: Markup[] = [];
-  if (spec.series.length > 1) overlay.push(legend(f, entries, spec.legendCorner));
+  if (entries.length > 1) overlay.push(legend(f, entries, spec.legendCorner));
   if (spec.topAxis) overlay.push(topAxis(f, spec.topAxis.label, spec.topAxis.shift));
   return plotSvg(f, { kind: spec.kind, title: spec.title, data: spec.data }, content, overlay);
 }

@@ -1,5 +1,6 @@
 import { constellation, MODULATIONS, type ModulationName, snrToOsnrDb } from '@intradyne/core';
 import { FEC_THRESHOLDS, theoryBer, theoryGmi } from '@intradyne/metrics';
+import type { LegendEntry } from './axes.js';
 import { type LineSeries, linePlot } from './line-plot.js';
 import { niceDomain } from './scale.js';
 import type { Markup } from './svg.js';
@@ -31,6 +32,19 @@ function snrDomain(points: readonly SweepPoint[]): [number, number] {
 
 function modulationsOf(points: readonly SweepPoint[]): ModulationName[] {
   return MODULATIONS.filter((m) => points.some((p) => p.modulation === m));
+}
+
+/**
+ * A compact legend: one colour swatch per modulation, then the meaning of
+ * each mark in ink (dot measured, ring no errors, dashed theory).
+ */
+function markLegend(mods: readonly ModulationName[], withBounds: boolean): LegendEntry[] {
+  return [
+    ...mods.map((m, i) => ({ label: m.toUpperCase(), colour: THEME.series[i], kind: 'line' as const })),
+    { label: 'measured', colour: THEME.ink, kind: 'dot' as const },
+    ...(withBounds ? [{ label: 'no errors: upper bound', colour: THEME.ink, kind: 'ring' as const }] : []),
+    { label: 'AWGN theory', colour: THEME.ink, kind: 'dash' as const },
+  ];
 }
 
 function curve(domain: readonly [number, number], f: (snrDb: number) => number): { x: number[]; y: number[] } {
@@ -95,14 +109,18 @@ export function berPlot(points: readonly SweepPoint[]): Markup {
   return linePlot({
     kind: 'ber',
     title: 'Pre-FEC BER against SNR',
-    box: { width: 620, height: 380 },
+    box: { width: 560, height: 380 },
     xAxis: { label: 'measured SNR, Es/N0 per polarization (dB)', domain },
     yAxis: { label: 'BER', log: true, domain: [10 ** Math.floor(Math.log10(lowest)), 0.5] },
     series,
     rules: [{ y: hd.limit, label: `${hd.name} FEC limit ${hd.limit}` }],
     errorBars: points.map((p) => ({ x: p.snrDb, lo: p.berLo, hi: p.berHi, colour: colourOf(p.modulation) })),
     topAxis: osnrAxis(points),
-    legendCorner: 'bottom-left',
+    legend: markLegend(
+      mods,
+      points.some((p) => p.errorFree),
+    ),
+    legendCorner: 'outside',
   });
 }
 
@@ -145,7 +163,8 @@ export function informationPlots(points: readonly SweepPoint[]): Markup[] {
       xAxis: { label: 'measured SNR (dB)', domain },
       yAxis: { label: 'GMI (bits per symbol)' },
       series: make('gmi'),
-      legendCorner: 'bottom-left',
+      legend: markLegend(mods, false),
+      legendCorner: 'outside',
     }),
     linePlot({
       kind: 'ngmi',
@@ -154,7 +173,8 @@ export function informationPlots(points: readonly SweepPoint[]): Markup[] {
       yAxis: { label: 'NGMI' },
       series: make('ngmi'),
       rules: soft.map((t) => ({ y: t.limit, label: `${t.name} limit ${t.limit.toFixed(3)}` })),
-      legendCorner: 'bottom-left',
+      legend: markLegend(mods, false),
+      legendCorner: 'outside',
     }),
   ];
 }
