@@ -115,7 +115,7 @@ describe('the report in a browser', () => {
 
   it('shows a capture name and notes made of markup as text, running none of it', async () => {
     const { page } = visits[0];
-    expect(await page.evaluate(() => (window as unknown as { __pwned?: unknown }).__pwned)).toBeUndefined();
+    expect(await page.evaluate(() => (globalThis as { __pwned?: unknown }).__pwned)).toBeUndefined();
     expect(await marks(page, 'img')).toBe(0);
     expect(await marks(page, 'script')).toBe(0);
     expect(await marks(page, '#injected')).toBe(0);
@@ -140,7 +140,7 @@ describe('the report in a browser', () => {
     expect(await marks(page, 'svg[data-plot="gmi"] circle.point')).toBe(measured);
     expect(await marks(page, 'svg[data-plot="ngmi"] g.rule')).toBe(2);
     expect(await page.locator('#rows tbody tr').count()).toBe(rows.length);
-    expect(await page.evaluate(() => (window as unknown as { __pwned?: unknown }).__pwned)).toBeUndefined();
+    expect(await page.evaluate(() => (globalThis as { __pwned?: unknown }).__pwned)).toBeUndefined();
     expect(await marks(page, 'img, script, #injected')).toBe(0);
     await page.screenshot({ path: join(dir, 'sweep.png'), fullPage: true });
     expect(readFileSync(join(dir, 'sweep.png')).subarray(1, 4).toString()).toBe('PNG');

@@ -1,4 +1,4 @@
-import { constellation, type FieldBlock, type ModulationName, OptionError } from '@intradyne/core';
+import { constellation, type ModulationName, OptionError } from '@intradyne/core';
 
 /** A 2-D histogram of the recovered symbols of both polarizations on one fixed square grid. */
 export interface ConstellationHistogram {
@@ -77,8 +77,8 @@ export class ConstellationDensity {
     this.ring = [new Float64Array(2 * hold), new Float64Array(2 * hold)];
   }
 
-  /** Takes the next symbols (both polarizations, equal lengths). */
-  push(block: Pick<FieldBlock<'symbols'>, 'x' | 'y'>): void {
+  /** Takes the next symbols: a symbols block, or any interleaved complex x and y of equal lengths. */
+  push(block: { readonly x: Float64Array; readonly y: Float64Array }): void {
     const n = block.x.length >> 1;
     const hold = this.hold;
     for (let k = 0; k < n; k++) {
