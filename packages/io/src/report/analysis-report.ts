@@ -1,7 +1,7 @@
 import { basename } from 'node:path';
-import type { EqualizerDiagnostics, PhaseRecoveryDiagnostics } from '@intradyne/core';
+import type { EqualizerDiagnostics, FrequencyOffsetDiagnostics, PhaseRecoveryDiagnostics } from '@intradyne/core';
 import { analysisToJson, type FileAnalysis } from '../analysis/analyze-file.js';
-import { phasePlot } from './carrier-plot.js';
+import { frequencyTrackPlot, phasePlot } from './carrier-plot.js';
 import { densityPlot } from './density-plot.js';
 import { convergencePlots, tapsPlot } from './equalizer-plots.js';
 import { figure, plotRow, type ReportSection, reportPage } from './page.js';
@@ -71,6 +71,13 @@ export function analysisReport(analysis: FileAnalysis): string {
   const phase = result.diagnostics.phase as PhaseRecoveryDiagnostics | null;
   if (phase?.phaseTrace && phase.phaseTrace.x.length > 0) {
     const skip = result.record.analysis.skipSymbols;
+    // A tracking frequency stage gives one estimate per span: worth a picture of its own.
+    const track = (result.diagnostics.frequency as FrequencyOffsetDiagnostics | null)?.track ?? [];
+    const coarse = (result.diagnostics.coarseFrequency as { freqOffsetHz?: number } | null)?.freqOffsetHz;
+    const trackPlot =
+      track.length > 1
+        ? [figure(frequencyTrackPlot(track, capture.symbolRate, Number.isFinite(coarse) ? (coarse as number) : 0))]
+        : [];
     sections.push({
       id: 'carrier',
       heading: 'Carrier phase',
@@ -78,7 +85,7 @@ export function analysisReport(analysis: FileAnalysis): string {
         `Frequency offset ${Number.isFinite(result.freqOffsetHz) ? `${formatNumber(result.freqOffsetHz / 1e6)} MHz` : 'not estimated'}; ` +
         `linewidth ${Number.isFinite(result.linewidthHz) ? `${formatNumber(result.linewidthHz / 1e3)} kHz` : 'not estimated'}; ` +
         `${result.cycleSlips.count} cycle slips (marked).`,
-      body: plotRow(figure(phasePlot(phase, capture.symbolRate, result.cycleSlips, skip, result.freqOffsetHz))),
+      body: plotRow(figure(phasePlot(phase, capture.symbolRate, result.cycleSlips, skip, result.freqOffsetHz)), ...trackPlot),
     });
   } else {
     sections.push({ id: 'carrier', heading: 'Carrier phase', body: absent('carrier-phase trace') });

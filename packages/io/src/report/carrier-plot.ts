@@ -1,4 +1,4 @@
-import type { CycleSlip, PhaseRecoveryDiagnostics } from '@intradyne/core';
+import type { CycleSlip, FrequencyEstimate, PhaseRecoveryDiagnostics } from '@intradyne/core';
 import { linePlot } from './line-plot.js';
 import type { Markup } from './svg.js';
 
@@ -35,5 +35,28 @@ export function phasePlot(
       { name: 'y', x: us, y: t.y },
     ],
     markers,
+  });
+}
+
+/**
+ * The frequency-offset estimates of a tracking frequency stage against
+ * time (one dot, `circle.estimate`, per span at its middle), the coarse
+ * offset removed before the matched filter added back, in MHz.
+ * @param coarseHz the coarse stage's estimate (0 when there is none)
+ */
+export function frequencyTrackPlot(track: readonly FrequencyEstimate[], symbolRate: number, coarseHz: number): Markup {
+  return linePlot({
+    kind: 'frequency',
+    title: 'Frequency-offset estimates',
+    xAxis: { label: 'time (µs)' },
+    yAxis: { label: 'offset (MHz)' },
+    series: [
+      {
+        name: 'estimate',
+        x: track.map((e) => ((e.startSymbol + e.symbols / 2) / symbolRate) * 1e6),
+        y: track.map((e) => (coarseHz + e.freqOffsetHz) / 1e6),
+        dots: 'estimate',
+      },
+    ],
   });
 }

@@ -72,8 +72,13 @@ export function niceDomain(values: Iterable<number>, pad = 0, count = 5): [numbe
   const w = hi - lo;
   lo -= pad * w;
   hi += pad * w;
-  const step = niceStep(lo, hi, count);
-  return [roundTo(Math.floor(lo / step + 1e-9) * step, step), roundTo(Math.ceil(hi / step - 1e-9) * step, step)];
+  // Rounding out can change the step the ticks will use: round out again with that one, so both ends carry a tick.
+  for (let pass = 0; pass < 2; pass++) {
+    const step = niceStep(lo, hi, count);
+    lo = roundTo(Math.floor(lo / step + 1e-9) * step, step);
+    hi = roundTo(Math.ceil(hi / step - 1e-9) * step, step);
+  }
+  return [lo, hi];
 }
 
 /**

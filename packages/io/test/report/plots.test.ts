@@ -1,6 +1,7 @@
 import type { EqualizerDiagnostics } from '@intradyne/core';
 import { beforeAll, describe, expect, it } from 'vitest';
 import type { FileAnalysis } from '../../src/analysis/analyze-file.js';
+import { frequencyTrackPlot } from '../../src/report/carrier-plot.js';
 import { densityPlot } from '../../src/report/density-plot.js';
 import { tapsPlot } from '../../src/report/equalizer-plots.js';
 import { linePlot } from '../../src/report/line-plot.js';
@@ -50,6 +51,14 @@ describe('plot marks', () => {
     const [gmi, ngmi] = informationPlots(points);
     expect(count(gmi, /class="point"/g)).toBe(3);
     expect(count(ngmi, /class="rule"/g)).toBe(2);
+  });
+
+  it('the frequency track has one dot per estimate, the coarse offset added back', () => {
+    const track = [0, 1, 2].map((i) => ({ startSymbol: 1000 * i, symbols: 1000, freqOffsetHz: 1e6 * i }));
+    const svg = frequencyTrackPlot(track, 32e9, 1.2e9);
+    expect(count(svg, /class="estimate"/g)).toBe(3);
+    // 1.2 GHz + 0…2 MHz: the axis is labelled in MHz around 1200.
+    expect(svg).toContain('>1200.0<');
   });
 
   it('a line breaks where a value cannot be placed (NaN, or ≤ 0 on a log axis)', () => {

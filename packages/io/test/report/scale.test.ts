@@ -29,6 +29,10 @@ describe('linear scales', () => {
     expect(niceDomain([13.79, 21.63], 0.08)).toEqual([12, 24]);
     expect(niceDomain([5, 5])).toEqual([4.5, 5.5]);
     expect(niceDomain([Number.NaN])).toEqual([0, 1]);
+    // Both ends fall on ticks of the step the axis will use (0.02 here, not the 0.01 of the first rounding).
+    const [lo, hi] = niceDomain([0.015625, 0.078125]);
+    expect([lo, hi]).toEqual([0, 0.08]);
+    expect(niceTicks(lo, hi, 5)).toEqual([0, 0.02, 0.04, 0.06, 0.08]);
   });
 
   it('refuses an empty domain', () => {
