@@ -14,7 +14,7 @@ import { rampColour, THEME } from './theme.js';
  * gives the counts.
  */
 export function densityPlot(h: ConstellationHistogram, pol: 'x' | 'y', gain: number): Markup {
-  const size = 340;
+  const size = 400;
   const e = h.extent;
   // The right margin holds the colour bar.
   const f = frame(
@@ -61,7 +61,7 @@ export function densityPlot(h: ConstellationHistogram, pol: 'x' | 'y', gain: num
     [
       el('rect', { x: f.x0, y: f.y0, width: f.x1 - f.x0, height: f.y1 - f.y0, fill: THEME.panel }),
       el('g', { class: 'cells' }, ...cells),
-      el('g', { class: 'ideal-points' }, dots(f, px, py, { colour: THEME.ideal, cls: 'ideal', radius: 3.6, hollow: true })),
+      el('g', { class: 'ideal-points' }, dots(f, px, py, { colour: THEME.ideal, cls: 'ideal', radius: 2.8, hollow: true })),
     ],
     [colourBar(f, max)],
   );
