@@ -34,6 +34,7 @@ export { type PhaseKernel, runKernel } from './carrier/phase-kernel.js';
 export {
   type BlindPhaseSearchStageOptions,
   blindPhaseSearch,
+  PHASE_TRACE_POINTS,
   type PhaseRecoveryDiagnostics,
   type PhaseRecoveryOptions,
   type ViterbiViterbiStageOptions,
@@ -61,6 +62,7 @@ export {
 } from './dispersion/compensate-dispersion.js';
 export { cdTapCount, dispersionCompensationResponse } from './dispersion/dispersion-filter.js';
 export { OverlapSave, overlapSaveSize, responseOfCenteredTaps } from './dispersion/overlap-save.js';
+export * from './dsp/channel-spectra.js';
 export * from './dsp/fft.js';
 export { besselI0, kaiserBeta, kaiserOrder, kaiserWindow } from './dsp/kaiser.js';
 export * from './dsp/rrc.js';
@@ -94,6 +96,7 @@ export * from './modulation/constellation.js';
 export * from './physics/jones.js';
 export * from './physics/link.js';
 export * from './pipeline/blocks.js';
+export * from './pipeline/decimated-trace.js';
 export * from './pipeline/pipe.js';
 export * from './pipeline/stage.js';
 export * from './prbs/prbs.js';

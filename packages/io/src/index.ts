@@ -1,9 +1,16 @@
 /**
  * Intradyne I/O: the only package that touches files. Capture and reference
- * writers, atomic output, simulated scenarios, and the `intradyne` command.
+ * writers, atomic output, simulated scenarios, the HTML reports, and the
+ * `intradyne` command.
  * @packageDocumentation
  */
 
+export {
+  type AnalysisSettings,
+  analysisToJson,
+  analyzeFile,
+  type FileAnalysis,
+} from './analysis/analyze-file.js';
 export {
   type ArrowCaptureOptions,
   loadArrowCapture,
@@ -58,6 +65,9 @@ export {
 } from './load/csv-capture.js';
 export { parseDecimal } from './load/decimal.js';
 export { SAMPLE_RATE_TOLERANCE, TIME_STEP_TOLERANCE } from './load/time-axis.js';
+export { analysisReport } from './report/analysis-report.js';
+export { type SweepReportContext, sweepReport } from './report/sweep-report.js';
+export { writeReport } from './report/write-report.js';
 export { type RunScenarioOptions, runScenario, type WrittenCapture } from './scenarios/run.js';
 export { BUILT_IN_SCENARIOS, builtInScenario, mergeOptions, type Scenario } from './scenarios/scenario.js';
 export { runSweepTask, type SweepOutcome, type SweepTask } from './sweep/analyze-task.js';
@@ -80,5 +90,6 @@ export {
 } from './sweep/shard-record.js';
 export { type SlurmScriptOptions, shellQuote, slurmScript } from './sweep/slurm-script.js';
 export { readManifest, type SweepCapture, type SweepInputs, sweepInputs } from './sweep/sweep-inputs.js';
+export { type SweepOutputPaths, writeSweepOutputs } from './sweep/sweep-outputs.js';
 export { type AtomicWriteOptions, OutputExistsError, writeFileAtomic } from './write/atomic.js';
 export { type CaptureCsvOptions, writeCaptureCsv, writeJsonAtomic, writeReferenceCsv } from './write/csv.js';

@@ -12,6 +12,8 @@
 export * from './counting/clopper-pearson.js';
 export * from './counting/error-count.js';
 export * from './counting/reference-labels.js';
+// Constellation density (the report's picture of the recovered symbols).
+export * from './density/constellation-density.js';
 // FEC thresholds.
 export * from './fec/thresholds.js';
 // Information.

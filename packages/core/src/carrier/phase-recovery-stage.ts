@@ -1,5 +1,6 @@
 import { constellation, MODULATIONS, type ModulationName } from '../modulation/constellation.js';
 import { type FieldBlock, fieldBlock } from '../pipeline/blocks.js';
+import { DecimatedTrace } from '../pipeline/decimated-trace.js';
 import { BlockError, type JsonValue, OptionError, type Stage, type StageRecord } from '../pipeline/stage.js';
 import { type ComplexArray, complexArray } from '../signal/complex.js';
 import type { DualPol } from '../signal/dual-pol.js';
@@ -51,9 +52,18 @@ export interface PhaseRecoveryDiagnostics {
     readonly x: readonly CycleSlip[];
     readonly y: readonly CycleSlip[];
   };
+  /**
+   * The unwrapped phase tracks in bounded memory, rad: point i is the mean
+   * phase of delivered symbols [i·every, (i + 1)·every), at most
+   * {@link PHASE_TRACE_POINTS} points per polarization (see {@link DecimatedTrace}).
+   */
+  readonly phaseTrace: { readonly every: number; readonly x: Float64Array; readonly y: Float64Array };
   /** The unwrapped phase tracks, rad, one value per delivered symbol (with `recordPhase`). */
   readonly phase?: { readonly x: Float64Array; readonly y: Float64Array };
 }
+
+/** Most points of the decimated phase trace, per polarization. */
+export const PHASE_TRACE_POINTS = 2048;
 
 /** Options of {@link viterbiViterbi}. */
 export type ViterbiViterbiStageOptions = PhaseRecoveryOptions & ViterbiViterbiOptions;
@@ -140,6 +150,7 @@ interface PolState {
   refSlips: ReferenceSlipDetector | null;
   jumpSlips: PhaseJumpSlipDetector | null;
   phaseChunks: Float64Array[];
+  trace: DecimatedTrace;
 }
 
 class PhaseRecoveryStage implements Stage<'symbols', 'symbols', PhaseRecoveryDiagnostics> {
@@ -197,6 +208,7 @@ class PhaseRecoveryStage implements Stage<'symbols', 'symbols', PhaseRecoveryDia
       refSlips: ref ? new ReferenceSlipDetector({ window: o.slipWindow }) : null,
       jumpSlips: ref ? null : new PhaseJumpSlipDetector({ window: o.slipWindow, threshold: th }),
       phaseChunks: [],
+      trace: new DecimatedTrace(1, PHASE_TRACE_POINTS),
     });
     this.x = pol(probe);
     this.y = pol(make());
@@ -267,6 +279,7 @@ class PhaseRecoveryStage implements Stage<'symbols', 'symbols', PhaseRecoveryDia
       p.refSlips?.reset();
       p.jumpSlips?.reset();
       p.phaseChunks = [];
+      p.trace.reset();
     }
     this.pushed = 0;
     this.kernelPushed = 0;
@@ -280,6 +293,7 @@ class PhaseRecoveryStage implements Stage<'symbols', 'symbols', PhaseRecoveryDia
     const ly = Number.isNaN(rs) ? Number.NaN : this.y.linewidth.linewidthHz(rs);
     const sx = (this.reference ? this.x.refSlips?.slips() : this.x.jumpSlips?.slips()) ?? [];
     const sy = (this.reference ? this.y.refSlips?.slips() : this.y.jumpSlips?.slips()) ?? [];
+    const tx = this.x.trace.result();
     const d: PhaseRecoveryDiagnostics = {
       symbols: this.delivered,
       linewidthHz: (lx + ly) / 2,
@@ -290,6 +304,8 @@ class PhaseRecoveryStage implements Stage<'symbols', 'symbols', PhaseRecoveryDia
         x: sx.slice(),
         y: sy.slice(),
       },
+      // Both polarizations get the same number of phases, so their traces share one resolution.
+      phaseTrace: { every: tx.every, x: tx.series[0], y: this.y.trace.result().series[0] },
     };
     if (!this.recordPhase) return d;
     return { ...d, phase: { x: join(this.x.phaseChunks), y: join(this.y.phaseChunks) } };
@@ -332,6 +348,8 @@ class PhaseRecoveryStage implements Stage<'symbols', 'symbols', PhaseRecoveryDia
       out[2 * written] = or;
       out[2 * written + 1] = oi;
       if (phases) phases[written] = theta;
+      p.trace.add(0, theta);
+      p.trace.step();
       p.linewidth.push(theta);
       if (ref && p.refSlips && centre % this.pilotPeriod === 0) {
         const j = (centre / this.pilotPeriod) % refLen;

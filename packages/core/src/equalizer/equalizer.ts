@@ -1,5 +1,6 @@
 import { constellation, MODULATIONS, type ModulationName } from '../modulation/constellation.js';
 import { type FieldBlock, fieldBlock } from '../pipeline/blocks.js';
+import { DecimatedTrace } from '../pipeline/decimated-trace.js';
 import { BlockError, type JsonValue, OptionError, type Stage, type StageRecord } from '../pipeline/stage.js';
 import { type ComplexArray, complexArray } from '../signal/complex.js';
 import {
@@ -101,7 +102,10 @@ export interface EqualizerOptions {
    * and the taps are not singular.
    */
   readonly convergence?: { readonly window?: number; readonly threshold?: number };
-  /** Symbols per point of the error trace (default 256). */
+  /**
+   * Symbols per point of the error trace at its start (default 256); the
+   * trace keeps at most 2048 points and halves its resolution when full.
+   */
   readonly traceEvery?: number;
 }
 
@@ -130,7 +134,10 @@ export interface EqualizerDiagnostics {
   /**
    * Downsampled error trace: point i is the mean, over adapted symbols
    * [i·every, (i + 1)·every), of the active rule's cost per symbol (|e|²
-   * for DD-LMS, (R² − |z|²)² for CMA and RDE) and of the separation index.
+   * for DD-LMS, (R² − |z|²)² for CMA and RDE) and of the separation index
+   * (over each `traceEvery` symbols, then averaged). At most
+   * {@link EQUALIZER_TRACE_POINTS} points: `every` starts at `traceEvery` and
+   * doubles whenever the trace is full (see {@link DecimatedTrace}).
    */
   readonly trace: {
     readonly every: number;
@@ -170,6 +177,9 @@ export interface EqualizerDiagnostics {
     readonly frequencyHzY: number;
   } | null;
 }
+
+/** Most points the equalizer's error trace keeps (bounded memory on any capture length). */
+export const EQUALIZER_TRACE_POINTS = 2048;
 
 /** Symbols between singularity checks after pre-convergence. */
 const CHECK_EVERY = 1024;
@@ -282,10 +292,8 @@ class ButterflyEqualizer implements Stage<'twoSps', 'symbols', EqualizerDiagnost
   private adapted!: number;
   private restarts!: number;
   private currentRule!: string;
-  private traceCostX!: number[];
-  private traceCostY!: number[];
-  private traceSepX!: number[];
-  private traceSepY!: number[];
+  /** Series: cost x, cost y, separation x, separation y; one step per `traceEvery` adapted symbols. */
+  private readonly trace = new DecimatedTrace(4, EQUALIZER_TRACE_POINTS);
   /** Running sums over the current trace interval: cost x, cost y, |x̂|², |x̂|⁴, |ŷ|², |ŷ|⁴. */
   private readonly acc = new Float64Array(6);
   /** |z|² of the last `window` output symbols, per polarization (ring buffers). */
@@ -354,10 +362,7 @@ class ButterflyEqualizer implements Stage<'twoSps', 'symbols', EqualizerDiagnost
     this.adapted = 0;
     this.restarts = 0;
     this.currentRule = 'none';
-    this.traceCostX = [];
-    this.traceCostY = [];
-    this.traceSepX = [];
-    this.traceSepY = [];
+    this.trace.reset();
     this.acc.fill(0);
     this.windowX = new Float64Array(o.window);
     this.windowY = new Float64Array(o.window);
@@ -380,6 +385,7 @@ class ButterflyEqualizer implements Stage<'twoSps', 'symbols', EqualizerDiagnost
     if (o.dd) phases.push({ rule: 'dd-lms', fromSymbol: o.dd.startSymbol, orthogonalY: false });
     const loopOn = this.dd !== null && o.dd !== null && this.adapted >= o.dd.startSymbol;
     const symbolRate = this.sampleRate / 2;
+    const trace = this.trace.result();
     return {
       taps: L,
       symbols: this.nextSymbol,
@@ -387,11 +393,11 @@ class ButterflyEqualizer implements Stage<'twoSps', 'symbols', EqualizerDiagnost
       phases,
       rule: this.currentRule,
       trace: {
-        every: o.traceEvery,
-        costX: Float64Array.from(this.traceCostX),
-        costY: Float64Array.from(this.traceCostY),
-        separationX: Float64Array.from(this.traceSepX),
-        separationY: Float64Array.from(this.traceSepY),
+        every: o.traceEvery * trace.every,
+        costX: trace.series[0],
+        costY: trace.series[1],
+        separationX: trace.series[2],
+        separationY: trace.series[3],
       },
       finalTaps: { xx: filter(FILTER_XX), xy: filter(FILTER_XY), yx: filter(FILTER_YX), yy: filter(FILTER_YY) },
       convergence: {
@@ -633,10 +639,12 @@ class ButterflyEqualizer implements Stage<'twoSps', 'symbols', EqualizerDiagnost
   private tracePoint(): void {
     const n = this.o.traceEvery;
     const acc = this.acc;
-    this.traceCostX.push(acc[0] / n);
-    this.traceCostY.push(acc[1] / n);
-    this.traceSepX.push(separationIndex(acc[2] / n, acc[3] / n, this.kurtosis));
-    this.traceSepY.push(separationIndex(acc[4] / n, acc[5] / n, this.kurtosis));
+    const t = this.trace;
+    t.add(0, acc[0] / n);
+    t.add(1, acc[1] / n);
+    t.add(2, separationIndex(acc[2] / n, acc[3] / n, this.kurtosis));
+    t.add(3, separationIndex(acc[4] / n, acc[5] / n, this.kurtosis));
+    t.step();
     acc.fill(0);
   }
 

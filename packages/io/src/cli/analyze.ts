@@ -8,6 +8,8 @@ import {
   readPipelineFile,
 } from '../analysis/analyze-file.js';
 import { writeSymbolsArrow } from '../arrow/arrow-write.js';
+import { analysisReport } from '../report/analysis-report.js';
+import { writeReport } from '../report/write-report.js';
 import { writeJsonAtomic } from '../write/csv.js';
 import { parseCommandArgs, positiveInteger, positiveNumber } from './args.js';
 import { table } from './demo.js';
@@ -30,6 +32,8 @@ Options (each overrides the descriptor):
   --skip N              leading recovered symbols left out (default 2048)
   --pipeline FILE       JSON with "receiver" (stage options) and "analysis" settings
   --out DIR             also write <name>.analysis.json and <name>.symbols.arrow there
+  --report FILE         also write a self-contained HTML report there (constellation,
+                        equalizer, carrier phase, input spectrum, every figure)
   --json                print one JSON object on stdout
   -h, --help            this text
 
@@ -79,6 +83,7 @@ export function analyzeCommand(argv: readonly string[], out: (s: string) => void
   const { values, positionals } = parseCommandArgs('analyze', argv, {
     ...ANALYSIS_OPTIONS,
     out: { type: 'string' },
+    report: { type: 'string' },
     json: { type: 'boolean' },
   });
   if (values.help) {
@@ -90,10 +95,16 @@ export function analyzeCommand(argv: readonly string[], out: (s: string) => void
   err(`analyzing ${positionals[0]}\n`);
   const analysis = analyzeFile(positionals[0], {
     ...settings,
-    analysis: { ...settings.analysis, keepSymbols: values.out !== undefined },
+    analysis: { ...settings.analysis, keepSymbols: values.out !== undefined, plotData: values.report !== undefined },
   });
   const json = analysisToJson(analysis);
   if (values.out) writeOutputs(values.out as string, analysis, json);
+  if (values.report) {
+    const c = analysis.capture;
+    const inputs = [c.dataPath, c.referencePath, ...(c.descriptorPath ? [c.descriptorPath] : [])];
+    writeReport(values.report as string, analysisReport(analysis), inputs);
+    err(`report: ${values.report}\n`);
+  }
   if (values.json) out(`${JSON.stringify(json)}\n`);
   else out(summary(analysis));
   if (!analysis.result.ok) {

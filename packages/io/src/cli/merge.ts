@@ -16,6 +16,7 @@ finish, when a shard is there twice, when shards were split differently
 swept different inputs. Nothing is analysed; the shards are left as they are.
 
 Options:
+  --report FILE         also write the sweep's HTML report (plots and table)
   --json                print the summary and the rows as one JSON object
   -h, --help            this text
 
@@ -25,13 +26,16 @@ shards that do not make one complete sweep.
 `;
 
 export function mergeCommand(argv: readonly string[], out: (s: string) => void): number {
-  const { values, positionals } = parseCommandArgs('merge', argv, { json: { type: 'boolean' } });
+  const { values, positionals } = parseCommandArgs('merge', argv, {
+    json: { type: 'boolean' },
+    report: { type: 'string' },
+  });
   if (values.help) {
     out(MERGE_HELP);
     return EXIT.done;
   }
   if (positionals.length !== 1) throw new UsageError("intradyne merge: expected one RESULT_DIR (see 'intradyne merge --help')");
-  const report = mergeShards(positionals[0]);
+  const report = mergeShards(positionals[0], { report: values.report as string | undefined });
   if (values.json) {
     out(
       `${JSON.stringify({
@@ -40,13 +44,14 @@ export function mergeCommand(argv: readonly string[], out: (s: string) => void):
         failed: report.failed,
         csv: report.csvPath,
         arrow: report.arrowPath,
+        report: report.reportPath,
         rows: report.rows,
       })}\n`,
     );
   } else {
     out(
       `merged ${report.shards} shards: ${report.captures} captures, failed ${report.failed}\n` +
-        `results: ${report.csvPath}, ${report.arrowPath}\n`,
+        `results: ${report.csvPath}, ${report.arrowPath}${report.reportPath ? `, report ${report.reportPath}` : ''}\n`,
     );
     printFailures(report.rows, out);
   }

@@ -56,6 +56,10 @@ Options:
   --jobs N              worker threads (default: the number of CPUs, ${availableParallelism()} here)
   --out DIR             output folder (default: <input>-sweep beside the input;
                         never the swept folder or inside it)
+  --report FILE         also write a self-contained HTML report of the table there
+                        (BER and GMI/NGMI against SNR with theory and FEC limits;
+                        with --shard, of the shard's rows; with --emit-slurm, the
+                        merge job writes it)
   --json                print the summary and the rows as one JSON object
   and every analysis option of 'intradyne analyze' (applied to every capture):
   --modulation M, --symbol-rate BD, --sample-rate SAS, --roll-off B,
@@ -72,6 +76,7 @@ export async function sweepCommand(argv: readonly string[], out: (s: string) => 
     ...ANALYSIS_OPTIONS,
     jobs: { type: 'string' },
     out: { type: 'string' },
+    report: { type: 'string' },
     json: { type: 'boolean' },
     shard: { type: 'string' },
     'emit-slurm': { type: 'string' },
@@ -108,7 +113,14 @@ export async function sweepCommand(argv: readonly string[], out: (s: string) => 
   err(
     `sweeping ${part} captures of ${positionals[0]}${shard ? ` (shard ${shardLabel(shard)} of ${inputs.captures.length})` : ''} on ${Math.max(1, Math.min(jobs, part))} threads\n`,
   );
-  const report = await runSweep(inputs, { out: outDir, jobs, settings, shard, onProgress: (k, a) => bar.tick(k, a) });
+  const report = await runSweep(inputs, {
+    out: outDir,
+    jobs,
+    settings,
+    shard,
+    report: values.report as string | undefined,
+    onProgress: (k, a) => bar.tick(k, a),
+  });
   bar.finish();
   if (values.json) {
     out(
@@ -122,13 +134,14 @@ export async function sweepCommand(argv: readonly string[], out: (s: string) => 
         csv: report.csvPath,
         arrow: report.arrowPath,
         journal: report.journalPath,
+        report: report.reportPath,
         rows: report.rows,
       })}\n`,
     );
   } else {
     out(
       `${shard ? `shard ${shardLabel(shard)}: ` : ''}swept ${report.captures} captures: analysed ${report.analysed}, skipped ${report.skipped}, failed ${report.failed}\n` +
-        `results: ${report.csvPath}, ${report.arrowPath}\n` +
+        `results: ${report.csvPath}, ${report.arrowPath}${report.reportPath ? `, report ${report.reportPath}` : ''}\n` +
         (shard ? `when all ${shard.count} shards have finished: intradyne merge ${outDir}\n` : ''),
     );
     printFailures(report.rows, out);
@@ -192,6 +205,7 @@ function emitSlurm(
     out: resolve(outDir),
     analysisArgs: analysisArgs(values),
     captures: inputs.captures.length,
+    report: typeof values.report === 'string' ? resolve(values.report) : undefined,
   });
   writeFileAtomic(file, (append) => append(text));
   mkdirSync(join(resolve(outDir), 'logs'), { recursive: true });

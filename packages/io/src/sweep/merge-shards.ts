@@ -2,12 +2,12 @@ import { existsSync, readdirSync, statSync } from 'node:fs';
 import { join } from 'node:path';
 import { InputError } from '../errors/input-error.js';
 import type { SweepRow } from './result-row.js';
-import { type ResultsTableFiles, writeResultsTable } from './results-table.js';
 import { shardOf } from './shard.js';
 import { readShardRecord, SHARD_RECORD_FILE, type ShardRecord } from './shard-record.js';
+import { type SweepOutputPaths, writeSweepOutputs } from './sweep-outputs.js';
 
 /** What a merge did. */
-export interface MergeReport extends ResultsTableFiles {
+export interface MergeReport extends SweepOutputPaths {
   /** Number of shards merged (N). */
   readonly shards: number;
   /** Rows in the merged table: every capture of the sweep. */
@@ -40,10 +40,13 @@ const SHARD_FOLDER = /^shard-(\d+)-of-(\d+)$/;
  * settings, or over different inputs (another folder or manifest, or the
  * same one with captures added or removed between shards); a row in a
  * shard it does not hash to, or a capture missing or present twice.
- * @throws InputError naming the results folder or the shard record at fault
+ * With `options.report`, also writes the sweep's HTML report there, the
+ * same page one sweep with `--report` gives.
+ * @throws InputError naming the results folder or the shard record at fault,
+ *   or when the report path is a shard's record
  * @example mergeShards('lab-sweep') // after shards 0/4 … 3/4 wrote lab-sweep/shard-K-of-4
  */
-export function mergeShards(dir: string): MergeReport {
+export function mergeShards(dir: string, options: { readonly report?: string } = {}): MergeReport {
   if (!existsSync(dir) || !statSync(dir).isDirectory())
     throw new InputError({ file: dir }, 'results folder', 'the output folder of a sharded sweep', 'no such folder');
   const found: Found[] = [];
@@ -162,6 +165,22 @@ export function mergeShards(dir: string): MergeReport {
     captures: rows.length,
     failed: rows.filter((r) => r.ok !== true).length,
     rows,
-    ...writeResultsTable(dir, rows),
+    ...writeSweepOutputs(
+      dir,
+      rows,
+      options.report === undefined
+        ? undefined
+        : {
+            path: options.report,
+            context: {
+              source: dir,
+              library: 'intradyne',
+              version: first.record.version,
+              settings: first.record.settings,
+              settingsSha256: first.record.settingsSha256,
+            },
+            inputs: found.map((f) => f.path),
+          },
+    ),
   };
 }

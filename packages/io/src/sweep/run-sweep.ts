@@ -8,10 +8,10 @@ import type { SweepOutcome, SweepTask } from './analyze-task.js';
 import { settingsFingerprint } from './fingerprint.js';
 import { appendJournal, closeTornLine, JOURNAL_FILE, latestEntries, readJournal } from './journal.js';
 import type { SweepRow } from './result-row.js';
-import { writeResultsTable } from './results-table.js';
 import { inShard, type ShardSpec, shardFolderName } from './shard.js';
 import { listingFingerprint, SHARD_RECORD_FILE, SHARD_RECORD_FORMAT, writeShardRecord } from './shard-record.js';
 import type { SweepInputs } from './sweep-inputs.js';
+import { writeSweepOutputs } from './sweep-outputs.js';
 import { runOnWorkers } from './worker-pool.js';
 
 export interface SweepOptions {
@@ -26,6 +26,8 @@ export interface SweepOptions {
   /** Worker threads (≥ 1). */
   readonly jobs: number;
   readonly settings: AnalysisSettings;
+  /** Also write the HTML report of the final rows there. */
+  readonly report?: string;
   /** Called on the main thread as each capture finishes (for a progress bar). */
   readonly onProgress?: (key: string, analysed: boolean) => void;
 }
@@ -46,6 +48,8 @@ export interface SweepReport {
   readonly csvPath: string;
   readonly arrowPath: string;
   readonly journalPath: string;
+  /** The HTML report, when asked for. */
+  readonly reportPath: string | null;
   /** The table, one row per capture in the sweep's order. */
   readonly rows: readonly SweepRow[];
 }
@@ -132,7 +136,20 @@ export async function runSweep(inputs: SweepInputs, options: SweepOptions): Prom
     const entry = now.get(c.key);
     return entry && entry.inputSha256 === mine.input_sha256 ? entry.row : mine;
   });
-  const { csvPath, arrowPath } = writeResultsTable(out, table);
+  const report = options.report
+    ? {
+        path: options.report,
+        context: {
+          source: inputs.root,
+          library: 'intradyne',
+          version: LIBRARY_VERSION,
+          settings: options.settings,
+          settingsSha256,
+        },
+        inputs: inputs.captures.flatMap((c) => [c.path, descriptorPathFor(c.path)]),
+      }
+    : undefined;
+  const { csvPath, arrowPath, reportPath } = writeSweepOutputs(out, table, report);
   let recordPath: string | undefined;
   if (shard) {
     // Written last: its presence tells the merge that the shard finished.
@@ -158,6 +175,7 @@ export async function runSweep(inputs: SweepInputs, options: SweepOptions): Prom
     csvPath,
     arrowPath,
     journalPath,
+    reportPath,
     rows: table,
   };
 }

@@ -14,6 +14,8 @@ export interface SlurmScriptOptions {
   readonly analysisArgs: readonly string[];
   /** Number of captures of the sweep when the script was written (for its header). */
   readonly captures: number;
+  /** The merge's HTML report (`merge --report`), as an absolute path, when asked for. */
+  readonly report?: string;
 }
 
 /** A word for bash, single-quoted unless it needs no quoting. */
@@ -35,7 +37,8 @@ export function shellQuote(word: string): string {
  * the shard count is written into the script rather than read from Slurm
  * (`--shard auto`), so that a partial re-submission (`sbatch --array=2,5
  * FILE`, after those tasks failed) still runs shards 2 and 5 of N, and
- * resumes them from their journals. Logs go to `OUT/logs/`, which must
+ * resumes them from their journals. With `report`, the merge also writes
+ * the sweep's HTML report there. Logs go to `OUT/logs/`, which must
  * exist before Slurm starts a task (the submitting branch creates it).
  * @example writeFileAtomic('lab.slurm', (w) => w(slurmScript({ tasks: 8, cpusPerTask: 4, … })))
  */
@@ -43,6 +46,7 @@ export function slurmScript(o: SlurmScriptOptions): string {
   const q = shellQuote;
   const logs = `${o.out}/logs`;
   const analysis = o.analysisArgs.length > 0 ? ` ${o.analysisArgs.map(q).join(' ')}` : '';
+  const mergeReport = o.report === undefined ? '' : ` --report ${q(o.report)}`;
   return `#!/usr/bin/env bash
 # An Intradyne sweep as a Slurm job array, written by 'intradyne sweep --emit-slurm'.
 # ${o.captures} captures of ${o.input}
@@ -81,7 +85,7 @@ if [ -z "\${SLURM_ARRAY_TASK_ID:-}" ]; then
   array=\${array%%;*}
   merge=$(sbatch --parsable --dependency="afterany:$array" --job-name=intradyne-merge \\
     --cpus-per-task=1 --output="$OUT/logs/merge-%j.out" \\
-    --wrap="$(printf '%q ' "\${INTRADYNE[@]}" merge "$OUT")")
+    --wrap="$(printf '%q ' "\${INTRADYNE[@]}" merge "$OUT"${mergeReport})")
   echo "submitted the shards as job $array and the merge as job \${merge%%;*}"
   exit 0
 fi

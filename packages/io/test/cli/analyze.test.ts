@@ -98,6 +98,27 @@ describe('intradyne analyze, end to end on the fixtures', () => {
     expect(readdirSync(FIXTURES).sort()).toEqual(before);
   });
 
+  it('writes a self-contained HTML report with --report, and never over an input', async () => {
+    const out = tempDir();
+    const report = join(out, 'qpsk-clean.html');
+    const r = await runMain(['analyze', join(FIXTURES, 'qpsk-clean.csv'), '--report', report]);
+    expect(r.code, r.stderr).toBe(0);
+    const html = readFileSync(report, 'utf8');
+    expect(html.match(/data-plot="density"/g)).toHaveLength(2);
+    // QPSK: four ideal points per polarization.
+    expect(html.match(/class="ideal"/g)).toHaveLength(8);
+    expect(html).not.toMatch(/<script|src=|href=/i);
+    const data = join(out, 'copy.csv');
+    copyFileSync(join(FIXTURES, 'qpsk-clean.csv'), data);
+    copyFileSync(join(FIXTURES, 'qpsk-clean.json'), join(out, 'copy.json'));
+    copyFileSync(join(FIXTURES, 'qpsk-clean-reference.csv'), join(out, 'qpsk-clean-reference.csv'));
+    const before = readFileSync(data, 'utf8');
+    const bad = await runMain(['analyze', data, '--report', data]);
+    expect(bad.code).toBe(2);
+    expect(bad.stderr).toMatch(/report file/);
+    expect(readFileSync(data, 'utf8')).toBe(before);
+  });
+
   it('exits 2 naming the file, line and column of a broken descriptor', async () => {
     const dir = copyFixture('qpsk-clean');
     const text =

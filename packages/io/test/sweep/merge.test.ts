@@ -80,6 +80,23 @@ describe('sweep --shard K/N and merge', () => {
     expect(total).toBe(16);
   });
 
+  it('writes with --report the page one sweep writes: one error bar per capture, every capture in its table', async () => {
+    const dir = shardsCopy();
+    const page = join(tempDir(), 'merged.html');
+    const r = await runMain(['merge', dir, '--report', page]);
+    expect(r.code, r.stderr).toBe(0);
+    expect(r.stdout).toContain(`report ${page}`);
+    const html = readFileSync(page, 'utf8');
+    expect(html.match(/class="error-bar"/g)).toHaveLength(16);
+    for (const line of single.csv.toString('utf8').trimEnd().split('\n').slice(1))
+      expect(html).toContain(line.slice(0, line.indexOf(',')));
+    // The report never replaces a shard's record.
+    const record = join(dir, 'shard-0-of-4', 'shard.json');
+    const before = readFileSync(record, 'utf8');
+    expect((await runMain(['merge', dir, '--report', record])).code).toBe(2);
+    expect(readFileSync(record, 'utf8')).toBe(before);
+  });
+
   it('re-runs a shard from its journal: nothing analysed again, the same record; --shard auto finds the same shard', async () => {
     const dir = shardsCopy();
     const before = readFileSync(join(dir, 'shard-2-of-4', 'shard.json'), 'utf8');
@@ -248,6 +265,7 @@ describe('sweep --emit-slurm', () => {
     // The task's shard and CPUs come from Slurm's variables, expanded by bash in the task.
     expect(text).toContain(`--shard "$SLURM_ARRAY_TASK_ID/4" --jobs "$\{SLURM_CPUS_PER_TASK:-1}" --skip 1024\n`);
     expect(text).toContain(`INPUT=${captures}\n`);
+    expect(text).not.toContain('--report');
     // bash reads it (syntax only: nothing runs).
     const syntax = spawnSync('bash', ['-n', file], { encoding: 'utf8' });
     expect(syntax.status, syntax.stderr).toBe(0);
@@ -255,6 +273,13 @@ describe('sweep --emit-slurm', () => {
     // Slurm's --output needs. The script is never replaced.
     expect(readdirSync(out)).toEqual(['logs']);
     expect(readdirSync(join(out, 'logs'))).toEqual([]);
+    // With --report, the merge job writes the page.
+    const withPage = join(dir, 'with-page.slurm');
+    const page = join(dir, 'lab.html');
+    expect(
+      (await runMain(['sweep', captures, '--out', out, '--emit-slurm', withPage, '--tasks', '4', '--report', page])).code,
+    ).toBe(0);
+    expect(readFileSync(withPage, 'utf8')).toContain(`merge "$OUT" --report ${page})`);
     const again = await runMain(['sweep', captures, '--out', out, '--emit-slurm', file, '--tasks', '2']);
     expect(again.code).toBe(2);
     expect(again.stderr).toContain('already exists; refusing to overwrite it');

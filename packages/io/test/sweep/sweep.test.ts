@@ -109,6 +109,18 @@ describe('intradyne sweep', () => {
     expect(snapshot(captures)).toEqual(before);
   });
 
+  it('writes the report of the final rows with --report, also when every row is reused', async () => {
+    const report = join(tempDir(), 'sweep.html');
+    const r = await runBuilt(['sweep', captures, '--out', reference.out, '--report', report]);
+    expect(r.code, r.stderr).toBe(0);
+    expect(counts(r.stdout)).toEqual([0, 4, 0]);
+    const html = readFileSync(report, 'utf8');
+    // One error bar per capture, and the four rows in the table.
+    expect(html.match(/class="error-bar"/g)).toHaveLength(4);
+    for (const key of ['osnr-c.csv', 'run-1/osnr-a.csv', 'run-1/osnr-b.csv', 'run-1/osnr-d.csv']) expect(html).toContain(key);
+    expect(readFileSync(join(reference.out, 'results.csv'), 'utf8')).toBe(reference.csv);
+  });
+
   it('gives each capture the figures that analyze gives it', async () => {
     // The rows of the --jobs 2 sweep above.
     expect(twoWorkers.rows).toHaveLength(4);

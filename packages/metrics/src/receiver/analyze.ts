@@ -1,5 +1,7 @@
 import {
   type ChannelBlock,
+  type ChannelSpectra,
+  ChannelSpectraEstimator,
   type ComplexArray,
   type CycleSlip,
   constellation,
@@ -15,6 +17,7 @@ import {
   Sha256,
   type StageRecord,
 } from '@intradyne/core';
+import { ConstellationDensity, type ConstellationHistogram } from '../density/constellation-density.js';
 import { type Measurement, measure, ReferenceNotFoundError } from '../measure/measure.js';
 import { snrForBer } from '../theory/qam-ber.js';
 
@@ -32,6 +35,16 @@ export interface AnalyzeOptions {
   readonly modulationTolerance?: number;
   /** Keep the recovered symbols in the result (default false). */
   readonly keepSymbols?: boolean;
+  /** Gather the data of the report's pictures in bounded memory (default false): see {@link PlotData}. */
+  readonly plotData?: boolean;
+}
+
+/** What the report draws beyond the stages' diagnostics, gathered while streaming (bounded memory). */
+export interface PlotData {
+  /** Density of the recovered symbols that the figures measure (the same leading and trailing symbols left out). */
+  readonly constellation: ConstellationHistogram;
+  /** Welch spectra of the four input channels (null for a capture shorter than one segment). */
+  readonly inputSpectra: ChannelSpectra | null;
 }
 
 /** Why an analysis failed; no figure is valid then. */
@@ -100,6 +113,8 @@ export interface AnalysisResult {
   readonly symbols: number;
   /** The recovered symbols, when `keepSymbols` was set. */
   readonly recovered: DualPol | null;
+  /** The report's pictures, when `plotData` was set. */
+  readonly plotData: PlotData | null;
   readonly record: ReproducibilityRecord;
 }
 
@@ -138,14 +153,27 @@ export function analyzeCapture(
   const chain = defaultReceiver(settings);
   const hasher = new Sha256();
   const out = new SymbolCollector();
+  const density = options.plotData
+    ? new ConstellationDensity(settings.modulation, { skipLeading: skipSymbols, skipTrailing: skipTail })
+    : null;
+  let spectra: ChannelSpectraEstimator | null = null;
   let samples = 0;
   for (const block of blocks) {
     hashRows(hasher, block);
     samples += block.xi.length;
-    out.add(chain.process(block));
+    if (options.plotData) {
+      spectra ??= new ChannelSpectraEstimator(block.sampleRate);
+      spectra.push(block);
+    }
+    const symbolsOut = chain.process(block);
+    density?.push(symbolsOut);
+    out.add(symbolsOut);
   }
   const tail = chain.flush();
-  if (tail) out.add(tail);
+  if (tail) {
+    density?.push(tail);
+    out.add(tail);
+  }
   const recovered = out.result();
   const diagnostics = chain.diagnostics();
   const record: ReproducibilityRecord = {
@@ -167,6 +195,7 @@ export function analyzeCapture(
     diagnostics,
     symbols,
     recovered: options.keepSymbols ? recovered : null,
+    plotData: density ? { constellation: density.result(), inputSpectra: spectra?.result() ?? null } : null,
     record,
   };
   const failed = (failure: AnalysisFailure, fit: ModulationFit | null = null): AnalysisResult => ({

@@ -1,0 +1,198 @@
+import { basename } from 'node:path';
+import type { EqualizerDiagnostics, FrequencyOffsetDiagnostics, PhaseRecoveryDiagnostics } from '@intradyne/core';
+import type { QualityFigures } from '@intradyne/metrics';
+import { analysisToJson, type FileAnalysis } from '../analysis/analyze-file.js';
+import { frequencyTrackPlot, phasePlot } from './carrier-plot.js';
+import { densityPlot } from './density-plot.js';
+import { convergencePlots, tapsPlot } from './equalizer-plots.js';
+import { figure, plotRow, type ReportSection, reportPage } from './page.js';
+import { spectrumPlot } from './spectrum-plot.js';
+import { el, join, type Markup, text } from './svg.js';
+import { flattenValues, formatNumber, gridTable, valueTable } from './value-table.js';
+
+/**
+ * The report of one analysis as a self-contained HTML page: the recovered
+ * constellation of each polarization, the equalizer's taps and
+ * convergence, the carrier phase with its slips, the input spectrum, every
+ * figure and diagnostic, and the reproducibility record. Pictures whose
+ * data are missing (no `plotData`, a replaced stage that reports other
+ * diagnostics) are left out with a note saying so.
+ * @example writeReport('run-07.html', analysisReport(analyzeFile('run-07.csv', { analysis: { plotData: true } })));
+ */
+export function analysisReport(analysis: FileAnalysis): string {
+  const { capture, result } = analysis;
+  const m = result.measurement;
+  const rec = result.record;
+  const figures: [string, string][] = m
+    ? [
+        ['BER', `${m.berIsUpperBound ? '< ' : ''}${m.ber.toExponential(2)}`],
+        ['SNR', `${m.snrDb.toFixed(2)} dB`],
+        ['GMI', `${m.gmi.toFixed(3)} b`],
+        ['NGMI', m.ngmi.toFixed(4)],
+        ['EVM', `${(100 * m.evmRms).toFixed(2)} %`],
+        ['offset', `${(result.freqOffsetHz / 1e6).toFixed(1)} MHz`],
+        ['slips', String(result.cycleSlips.count)],
+      ]
+    : [];
+  return reportPage({
+    title: capture.name,
+    subtitle:
+      `${capture.modulation.toUpperCase()} at ${formatNumber(capture.symbolRate / 1e9)} GBd, ${formatNumber(capture.sampleRate / 1e9)} GSa/s · ` +
+      `${basename(capture.dataPath)}${capture.descriptor.notes ? ` · ${capture.descriptor.notes}` : ''}`,
+    verdict: { ok: result.ok, label: result.ok ? 'measured' : `failed: ${result.failure?.check}` },
+    figures,
+    sections: [
+      constellationSection(analysis),
+      equalizerSection(analysis),
+      carrierSection(analysis),
+      spectrumSection(analysis),
+      valuesSection(analysis),
+      recordSection(analysis),
+    ],
+    footer: `Written by ${rec.library} ${rec.version}. This page loads nothing: it is complete as it is.`,
+  });
+}
+
+/** The note that stands in for a picture whose data the analysis does not have. */
+function absent(what: string): Markup {
+  return el('p', { class: 'note' }, text(`No ${what} in this analysis.`));
+}
+
+function constellationSection({ result }: FileAnalysis): ReportSection {
+  const heading = 'Recovered constellation';
+  const density = result.plotData?.constellation;
+  if (!density || density.counted === 0) return { id: 'constellation', heading, body: absent('constellation density') };
+  const m = result.measurement;
+  // With the polarizations swapped, receiver output x carries the transmitted y: take that one's gain.
+  const swapped = m?.sync.swapped ?? false;
+  const gain = (p: 'x' | 'y') => m?.perPol[swapped ? (p === 'x' ? 'y' : 'x') : p].gain ?? 1;
+  const outside = density.outside.x + density.outside.y;
+  return {
+    id: 'constellation',
+    heading,
+    note:
+      `Density of the ${density.counted.toLocaleString('en')} recovered symbols per polarization that the figures measure ` +
+      '(darker: more symbols, on a logarithmic scale); the open circles are the ideal points at the measured gain. ' +
+      'Tight round clouds centred on the circles are healthy.' +
+      (outside > 0 ? ` ${outside} symbols fell outside the picture.` : ''),
+    body: plotRow(figure(densityPlot(density, 'x', gain('x'))), figure(densityPlot(density, 'y', gain('y')))),
+  };
+}
+
+function equalizerSection({ result }: FileAnalysis): ReportSection {
+  const eq = result.diagnostics.equalizer as EqualizerDiagnostics | null;
+  // A replaced equalizer may report other diagnostics.
+  if (!eq?.finalTaps || !eq.trace)
+    return { id: 'equalizer', heading: 'Equalizer', body: absent('butterfly-equalizer diagnostics') };
+  const [cost, separation] = convergencePlots(eq);
+  const c = eq.convergence;
+  return {
+    id: 'equalizer',
+    heading: 'Equalizer',
+    note:
+      `${eq.taps} taps per filter; converged: ${c.converged ? 'yes' : 'no'} ` +
+      `(separation index x ${formatNumber(c.separationX)}, y ${formatNumber(c.separationY)}, threshold ${c.threshold}); ` +
+      `singularity restarts ${eq.singularity.restarts}. The adapted symbols count the passes over the start of the capture before the output.`,
+    body: plotRow(
+      figure(
+        tapsPlot(eq),
+        'A healthy equalizer has its energy in hxx and hyy (or hxy and hyx when it swapped the polarizations), peaked near the centre.',
+      ),
+      figure(cost, 'The cost falls and levels off as the equalizer converges; each rule has its own scale.'),
+      figure(separation),
+    ),
+  };
+}
+
+function carrierSection({ capture, result }: FileAnalysis): ReportSection {
+  const phase = result.diagnostics.phase as PhaseRecoveryDiagnostics | null;
+  if (!phase?.phaseTrace || phase.phaseTrace.x.length === 0)
+    return { id: 'carrier', heading: 'Carrier phase', body: absent('carrier-phase trace') };
+  // A tracking frequency stage gives one estimate per span: worth a picture of its own.
+  const track = (result.diagnostics.frequency as FrequencyOffsetDiagnostics | null)?.track ?? [];
+  const coarse = (result.diagnostics.coarseFrequency as { freqOffsetHz?: number } | null)?.freqOffsetHz ?? 0;
+  const trackPlot =
+    track.length > 1 ? [figure(frequencyTrackPlot(track, capture.symbolRate, Number.isFinite(coarse) ? coarse : 0))] : [];
+  const known = (v: number, scale: number, unit: string) =>
+    Number.isFinite(v) ? `${formatNumber(v / scale)} ${unit}` : 'not estimated';
+  return {
+    id: 'carrier',
+    heading: 'Carrier phase',
+    note:
+      `Frequency offset ${known(result.freqOffsetHz, 1e6, 'MHz')}; linewidth ${known(result.linewidthHz, 1e3, 'kHz')}; ` +
+      `${result.cycleSlips.count} cycle slips (marked).`,
+    body: plotRow(
+      figure(phasePlot(phase, capture.symbolRate, result.cycleSlips, result.record.analysis.skipSymbols, result.freqOffsetHz)),
+      ...trackPlot,
+    ),
+  };
+}
+
+function spectrumSection({ result }: FileAnalysis): ReportSection {
+  const spectra = result.plotData?.inputSpectra;
+  return {
+    id: 'spectrum',
+    heading: 'Input spectrum',
+    body: spectra
+      ? plotRow(
+          figure(
+            spectrumPlot(spectra),
+            'The four channels should have the same shape and level; the signal occupies about (1 + roll-off)·Rs/2 plus the frequency offset.',
+          ),
+        )
+      : absent('input spectrum'),
+  };
+}
+
+function valuesSection(analysis: FileAnalysis): ReportSection {
+  const { result } = analysis;
+  const m = result.measurement;
+  const row = (label: string, f: QualityFigures) => [
+    label,
+    formatNumber(f.ber),
+    `${formatNumber(f.berCi95[0])} – ${formatNumber(f.berCi95[1])}`,
+    `${f.bitErrors} / ${f.bits}`,
+    formatNumber(100 * f.evmRms),
+    formatNumber(f.snrDb),
+    f.qDb === null ? '–' : formatNumber(f.qDb),
+    formatNumber(f.gmi),
+    formatNumber(f.ngmi),
+  ];
+  // The record has its own section.
+  const rest = Object.fromEntries(Object.entries(analysisToJson(analysis)).filter(([k]) => k !== 'record'));
+  return {
+    id: 'values',
+    heading: 'Every figure and diagnostic',
+    body: join([
+      m
+        ? gridTable(
+            ['', 'BER', '95 % interval', 'errors / bits', 'EVM %', 'SNR dB', 'Q dB', 'GMI b', 'NGMI'],
+            [row('total', m), row('x', m.perPol.x), row('y', m.perPol.y)],
+          )
+        : el('p', { class: 'note' }, text(`The analysis failed (${result.failure?.check}): ${result.failure?.reason}`)),
+      el('div', { style: 'height:12px' }),
+      valueTable(flattenValues(rest)),
+    ]),
+  };
+}
+
+function recordSection({ result }: FileAnalysis): ReportSection {
+  const rec = result.record;
+  return {
+    id: 'record',
+    heading: 'How to repeat this analysis',
+    note: 'The library version, the SHA-256 of the input samples, and the chain with every option of every stage.',
+    body: join([
+      valueTable(
+        flattenValues({
+          library: rec.library,
+          version: rec.version,
+          inputSha256: rec.inputSha256,
+          samples: rec.samples,
+          analysis: rec.analysis,
+        }),
+      ),
+      el('pre', { class: 'record' }, text(JSON.stringify(rec.pipeline, null, 2))),
+    ]),
+  };
+}
