@@ -1,7 +1,7 @@
 /**
  * Intradyne I/O: the only package that touches files. Capture and reference
  * writers, atomic output, simulated scenarios, and the `intradyne` command.
- * @packageDocumentation
+ * @module @intradyne/io
  */
 
 export {

@@ -73,6 +73,7 @@ export class LinewidthAccumulator {
     return ((v2 - v1) * symbolRate) / (2 * Math.PI * (this.l2 - this.l1));
   }
 
+  /** Forgets every phase seen: back to the state of a new accumulator. */
   reset(): void {
     this.ring.fill(0);
     this.pushed = 0;

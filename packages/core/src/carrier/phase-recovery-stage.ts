@@ -43,16 +43,31 @@ export interface PhaseRecoveryDiagnostics {
   readonly symbols: number;
   /** Combined linewidth estimated from the phase tracks, Hz: the mean of the two polarizations (NaN until enough symbols). */
   readonly linewidthHz: number;
-  readonly linewidthPerPolHz: { readonly x: number; readonly y: number };
+  /** The linewidth estimated on each polarization's phase track, Hz (NaN until enough symbols). */
+  readonly linewidthPerPolHz: {
+    /** From the x polarization, Hz. */
+    readonly x: number;
+    /** From the y polarization, Hz. */
+    readonly y: number;
+  };
+  /** Cycle slips seen in the phase tracks (blind: no reference here). */
   readonly cycleSlips: {
+    /** How they were detected. */
     readonly method: SlipMethod;
     /** Slips of both polarizations. */
     readonly count: number;
+    /** The slips of the x polarization, in symbol order. */
     readonly x: readonly CycleSlip[];
+    /** The slips of the y polarization, in symbol order. */
     readonly y: readonly CycleSlip[];
   };
   /** The unwrapped phase tracks, rad, one value per delivered symbol (with `recordPhase`). */
-  readonly phase?: { readonly x: Float64Array; readonly y: Float64Array };
+  readonly phase?: {
+    /** Phase of the x polarization, rad, one per symbol. */
+    readonly x: Float64Array;
+    /** Phase of the y polarization, rad, one per symbol. */
+    readonly y: Float64Array;
+  };
 }
 
 /** Options of {@link viterbiViterbi}. */

@@ -82,6 +82,7 @@ export class PhaseJumpSlipDetector {
     return this.found;
   }
 
+  /** Forgets the phase history and the slips found: back to the state of a new detector. */
   reset(): void {
     this.ring.fill(0);
     this.pushed = 0;

@@ -106,6 +106,7 @@ export class ReferenceSlipDetector {
     return this.found;
   }
 
+  /** Forgets the running sums and the slips found: back to the state of a new detector. */
   reset(): void {
     this.re.fill(0);
     this.im.fill(0);

@@ -21,7 +21,9 @@ import { type ComplexArray, complexArray, concatComplex } from '../signal/comple
  * ±P wraps around, which the overlap must make negligible.
  */
 export class OverlapSave {
+  /** FFT size N, samples. */
   readonly fftSize: number;
+  /** Samples P shared with the previous block; each FFT delivers N − P new samples. */
   readonly overlap: number;
   private readonly response: ComplexArray;
   private readonly step: number;
@@ -55,6 +57,7 @@ export class OverlapSave {
     this.reset();
   }
 
+  /** Back to the start of a stream: P zeros stand for the samples before it. */
   reset(): void {
     // P zeros stand for the samples before the stream.
     this.buf = new Float64Array(2 * Math.max(this.fftSize, 1024));

@@ -17,15 +17,19 @@
 
 /** Offsets of the four filters in the tap array, in numbers (multiply by L). */
 export const FILTER_XX = 0;
+/** Offset of h_xy (y input to x output) in the tap array, in numbers (multiply by L). */
 export const FILTER_XY = 2;
+/** Offset of h_yx (x input to y output) in the tap array, in numbers (multiply by L). */
 export const FILTER_YX = 4;
+/** Offset of h_yy in the tap array, in numbers (multiply by L). */
 export const FILTER_YY = 6;
 
 /**
  * Butterfly outputs for one symbol.
  * @param taps 8·L numbers (layout above)
  * @param L taps per filter (odd)
- * @param ux, uy interleaved complex delay lines of the two input polarizations
+ * @param ux interleaved complex delay line of the x input polarization
+ * @param uy interleaved complex delay line of the y input polarization
  * @param newest index (in complex samples) of the newest sample of the window, n + c
  * @param out receives [x̂re, x̂im, ŷre, ŷim]
  */

@@ -134,7 +134,12 @@ export class DdLmsRule implements UpdateRule {
   }
 
   /** Loop phase θ (rad) and frequency ν (rad per symbol) of a polarization. */
-  loopState(pol: 0 | 1): { phase: number; frequency: number } {
+  loopState(pol: 0 | 1): {
+    /** Loop phase θ, rad. */
+    phase: number;
+    /** Loop frequency ν, rad per symbol. */
+    frequency: number;
+  } {
     return { phase: this.theta[pol], frequency: this.nu[pol] };
   }
 

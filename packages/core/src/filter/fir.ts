@@ -31,6 +31,7 @@ export function firKernel(taps: ComplexArray, u: Float64Array, out: Float64Array
   }
 }
 
+/** Options of {@link firFilter}. */
 export interface FirFilterOptions<D extends FieldDomain> {
   /** Domain filtered (input and output), default 'field'. */
   readonly domain?: D;
@@ -51,7 +52,9 @@ export function firFilter<D extends FieldDomain = 'field'>(options: FirFilterOpt
   return new FirFilter(options);
 }
 
+/** What {@link firFilter} reports. */
 export interface FirDiagnostics {
+  /** Taps of the filter. */
   readonly taps: number;
   /** Samples delivered so far, per polarization. */
   readonly samples: number;

@@ -2,6 +2,7 @@ import { type ChannelBlock, type FieldBlock, fieldBlock } from '../pipeline/bloc
 import { BlockError, type Stage, type StageRecord } from '../pipeline/stage.js';
 import { complexArray } from '../signal/complex.js';
 
+/** What {@link combineChannels} reports. */
 export interface CombineDiagnostics {
   /** Samples combined so far, per polarization. */
   readonly samples: number;

@@ -6,6 +6,7 @@ import { checkChannels } from './normalize-channels.js';
 /** 'gsop': Gram–Schmidt, I kept as the reference axis; 'lowdin': symmetric, both axes move by half the error. */
 export type OrthogonalizationMethod = 'gsop' | 'lowdin';
 
+/** Options of {@link orthogonalizeIq}. */
 export interface OrthogonalizeIqOptions {
   /** Default 'gsop'. */
   readonly method?: OrthogonalizationMethod;
@@ -27,10 +28,13 @@ export interface IqImbalanceEstimate {
   readonly matrix: readonly [number, number, number, number];
 }
 
+/** What {@link orthogonalizeIq} estimated. */
 export interface OrthogonalizeIqDiagnostics {
+  /** The method used. */
   readonly method: OrthogonalizationMethod;
   /** Null until the calibration span has been seen. */
   readonly x: IqImbalanceEstimate | null;
+  /** The y polarization's imbalance; null until the calibration span has been seen. */
   readonly y: IqImbalanceEstimate | null;
 }
 

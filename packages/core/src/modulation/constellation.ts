@@ -3,6 +3,7 @@ import { type ComplexArray, complexArray } from '../signal/complex.js';
 /** Modulation formats the library handles. */
 export type ModulationName = 'qpsk' | '16qam' | '64qam';
 
+/** Every modulation the library knows, in order of size. */
 export const MODULATIONS: readonly ModulationName[] = ['qpsk', '16qam', '64qam'];
 
 /**
@@ -16,6 +17,7 @@ export const MODULATIONS: readonly ModulationName[] = ['qpsk', '16qam', '64qam']
  * neighbouring levels differ in exactly one bit.
  */
 export interface Constellation {
+  /** Which modulation. */
   readonly name: ModulationName;
   /** Number of points M. */
   readonly order: number;

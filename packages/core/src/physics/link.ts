@@ -8,6 +8,7 @@ export const SPEED_OF_LIGHT = 299_792_458;
 /** The 0.1 nm OSNR reference bandwidth at 1550 nm, Hz (12.5 GHz, common practice). */
 export const OSNR_REFERENCE_BANDWIDTH_HZ = 12.5e9;
 
+/** What the OSNR ↔ SNR conversions need to know about the signal. */
 export interface OsnrOptions {
   /** Symbol rate, Bd. */
   readonly symbolRate: number;

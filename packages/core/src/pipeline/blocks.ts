@@ -11,9 +11,13 @@ import { type ComplexArray, complexArray, concatComplex, sliceComplex } from '..
  * Later code may add domains by merging into {@link DomainBlocks}.
  */
 export interface DomainBlocks {
+  /** The scope's four real channels xi, xq, yi, yq at the capture's rate. */
   channels: ChannelBlock;
+  /** Complex x and y fields at the capture's rate. */
   field: FieldBlock<'field'>;
+  /** Complex fields at 2 samples per symbol. */
   twoSps: FieldBlock<'twoSps'>;
+  /** One complex value per symbol and polarization. */
   symbols: FieldBlock<'symbols'>;
 }
 
@@ -25,10 +29,15 @@ export type BlockOf<D extends Domain> = DomainBlocks[D];
 
 /** Real four-channel block. All arrays have the same length. */
 export interface ChannelBlock {
+  /** Always 'channels'. */
   readonly domain: 'channels';
+  /** In-phase channel of x, capture units, one value per sample. */
   readonly xi: Float64Array;
+  /** Quadrature channel of x. */
   readonly xq: Float64Array;
+  /** In-phase channel of y. */
   readonly yi: Float64Array;
+  /** Quadrature channel of y. */
   readonly yq: Float64Array;
   /** Sa/s. */
   readonly sampleRate: number;
@@ -38,11 +47,15 @@ export interface ChannelBlock {
 
 /** Complex dual-polarization block; `x` and `y` have the same length. */
 export interface FieldBlock<D extends 'field' | 'twoSps' | 'symbols' = 'field' | 'twoSps' | 'symbols'> {
+  /** The domain this block belongs to. */
   readonly domain: D;
+  /** x polarization, interleaved complex (2 numbers per sample). */
   readonly x: ComplexArray;
+  /** y polarization, the same length as `x`. */
   readonly y: ComplexArray;
   /** Sa/s. */
   readonly sampleRate: number;
+  /** Samples per symbol (1 for symbols, 2 for twoSps, the capture's for field). */
   readonly samplesPerSymbol: number;
 }
 

@@ -36,12 +36,15 @@ const DESIGN_MARGIN_DB = 3;
 export class InterpolationKernel {
   /** H: taps on each side; the kernel has 2H taps. */
   readonly halfTaps: number;
+  /** 2H: taps of the kernel. */
   readonly taps: number;
   /** Rows per input sample. */
   readonly phases: number;
   /** Cutoff f_c, cycles per input sample. */
   readonly cutoff: number;
+  /** Kaiser window β. */
   readonly beta: number;
+  /** The lowpass specification, defaults filled in. */
   readonly spec: Required<LowpassSpec>;
   /** (phases + 1) rows of 2H coefficients. */
   private readonly table: Float64Array;

@@ -46,6 +46,7 @@ export function rrcTaps(rollOff: number, samplesPerSymbol: number, spanSymbols: 
   return taps;
 }
 
+/** Options of the root-raised-cosine matched filter ({@link rrcMatchedFilter}). */
 export interface MatchedFilterOptions {
   /** Transmitter roll-off β in (0, 1] (default 0.1). */
   readonly rollOff?: number;
@@ -57,10 +58,13 @@ export interface MatchedFilterOptions {
   readonly spanSymbols?: number;
 }
 
+/** What the matched filter reports. */
 export interface MatchedFilterDiagnostics {
+  /** Taps of the root-raised-cosine filter. */
   readonly taps: number;
   /** FFT size of the overlap-save engine. */
   readonly fftSize: number;
+  /** Samples delivered so far, per polarization. */
   readonly samples: number;
 }
 

@@ -10,7 +10,10 @@
 declare const complexBrand: unique symbol;
 
 /** Interleaved complex samples; `length` is twice the number of samples. */
-export type ComplexArray = Float64Array & { readonly [complexBrand]: true };
+export type ComplexArray = Float64Array & {
+  /** Compile-time brand only: marks the array as interleaved complex. */
+  readonly [complexBrand]: true;
+};
 
 /**
  * Allocates `samples` complex zeros.

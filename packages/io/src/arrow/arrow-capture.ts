@@ -5,6 +5,7 @@ import { checkReferenceLength, dualPolFromColumns, REFERENCE_COLUMNS } from '../
 import { InputError } from '../errors/input-error.js';
 import { openForReadingAsync } from '../load/open-file.js';
 
+/** Options of the Arrow capture readers ({@link readArrowCapture}, {@link loadArrowCapture}). */
 export interface ArrowCaptureOptions {
   /** Column names (case-insensitive) of the channels, e.g. `{ xi: 'CH1' }`; by default the channel names. */
   readonly columns?: Partial<Record<ChannelName, string>>;

@@ -2,6 +2,7 @@ import type { DualPol, ScopeChannels } from '@intradyne/core';
 import { Float64, makeTable, Table, tableToIPC, Utf8, type Vector, vectorFromArray } from 'apache-arrow';
 import { type AtomicWriteOptions, writeFileAtomic } from '../write/atomic.js';
 
+/** Options of the Arrow writers. */
 export interface ArrowWriteOptions extends AtomicWriteOptions {
   /** IPC format: 'file' (default; random access, `.arrow`) or 'stream' (`.arrows`). */
   readonly format?: 'file' | 'stream';

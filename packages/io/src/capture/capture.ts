@@ -19,19 +19,30 @@ export const DATA_EXTENSIONS: Readonly<Record<string, 'csv' | 'arrow'>> = {
 export interface CaptureDescription {
   /** The data file's name without extension. */
   readonly name: string;
+  /** Path of the data file. */
   readonly dataPath: string;
+  /** Its format, from the extension. */
   readonly format: 'csv' | 'arrow';
   /** The sidecar, or undefined for an Arrow capture described by its schema metadata alone. */
   readonly descriptorPath: string | undefined;
   /** Descriptor fields after defaults and overrides; `sampleRate` always set. */
-  readonly descriptor: CaptureDescriptor & { readonly sampleRate: number };
+  readonly descriptor: CaptureDescriptor & {
+    /** Sa/s, stated or inferred from the time column. */
+    readonly sampleRate: number;
+  };
+  /** Scope sample rate, Sa/s. */
   readonly sampleRate: number;
+  /** Symbol rate, Bd. */
   readonly symbolRate: number;
+  /** sampleRate / symbolRate (need not be an integer). */
   readonly samplesPerSymbol: number;
+  /** The transmitted modulation. */
   readonly modulation: ModulationName;
+  /** Transmitter root-raised-cosine roll-off. */
   readonly rollOff: number;
   /** ps/nm; undefined when not stated (to be estimated). */
   readonly dispersionPsPerNm: number | undefined;
+  /** Path of the reference symbols file, resolved against the descriptor's folder. */
   readonly referencePath: string;
   /** Transmitted symbols, as written (any scale), at least 32. */
   readonly reference: DualPol;

@@ -8,6 +8,7 @@
  * line; a whole-file problem has no position).
  */
 export class InputError extends Error {
+  /** Always 'InputError'. */
   override readonly name = 'InputError';
   /** The file at fault (as given by the caller). */
   readonly file: string;
@@ -17,7 +18,9 @@ export class InputError extends Error {
   readonly column: number | undefined;
   /** What was being read: a column name, a descriptor field, a row… */
   readonly what: string;
+  /** What was expected there, in words. */
   readonly expected: string;
+  /** What was found (quoted and shortened). */
   readonly received: string;
 
   constructor(where: InputLocation, what: string, expected: string, received: string) {
@@ -36,8 +39,11 @@ export class InputError extends Error {
 
 /** Where in a file a problem sits. */
 export interface InputLocation {
+  /** The file at fault. */
   readonly file: string;
+  /** Line, 1-based. */
   readonly line?: number;
+  /** Column, 1-based. */
   readonly column?: number;
 }
 

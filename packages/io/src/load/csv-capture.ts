@@ -8,6 +8,7 @@ import { SAMPLE_RATE_TOLERANCE, TimeAxis } from './time-axis.js';
 /** Column names of a capture CSV: the four channels and the time column. */
 export type CaptureColumn = ChannelName | 't';
 
+/** Options of the CSV capture readers ({@link readCsvCapture}, {@link loadCsvCapture}). */
 export interface CsvCaptureOptions {
   /**
    * Header names of the columns (case-insensitive), e.g. `{ xi: 'CH1', xq: 'CH2', yi: 'CH3', yq: 'CH4', t: 'Time' }`;
@@ -196,7 +197,8 @@ function* captureBlocks(file: string, read: ReadFn, options: CsvCaptureOptions):
  * names the columns: `xi, xq, yi, yq` (case-insensitive, any order, or
  * mapped with `columns`), an optional time column `t` in seconds, other
  * columns ignored. The sample rate comes from `sampleRate` or from the time
- * column (see {@link TimeAxis} for the inference and its tolerances).
+ * column (its steps must agree within {@link TIME_STEP_TOLERANCE}, a stated
+ * rate with the inferred one within {@link SAMPLE_RATE_TOLERANCE}).
  *
  * @param path the CSV file
  * @returns a generator of `channels` blocks of `blockSize` samples (the last one shorter)

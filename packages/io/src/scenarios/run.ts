@@ -6,14 +6,21 @@ import { mergeOptions, type Scenario } from './scenario.js';
 
 /** What `runScenario` wrote for one capture. */
 export interface WrittenCapture {
+  /** The capture's name. */
   readonly name: string;
+  /** Path of the data file written. */
   readonly data: string;
+  /** Path of the descriptor written. */
   readonly descriptor: string;
+  /** Path of the reference written. */
   readonly reference: string;
+  /** The simulated capture, with its truth. */
   readonly capture: SimulatedCapture;
+  /** The simulator options it was made with. */
   readonly options: SimulationOptions;
 }
 
+/** Options of {@link runScenario}. */
 export interface RunScenarioOptions {
   /** Replace files that exist (default false). */
   readonly overwrite?: boolean;

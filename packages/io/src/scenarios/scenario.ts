@@ -12,10 +12,20 @@ import type { SimulationOptions } from '@intradyne/core';
  * `statesSkew` (default true): whether it states the receiver's skews.
  */
 export interface Scenario {
+  /** Scenario name. */
   readonly name: string;
+  /** What it shows, in a sentence. */
   readonly description: string;
+  /** Simulator options shared by every capture. */
   readonly base: Partial<SimulationOptions>;
-  readonly captures: readonly ({ readonly name: string; readonly timeColumn?: boolean } & Partial<SimulationOptions>)[];
+  /** The captures: a name and the options that differ from `base`. */
+  readonly captures: readonly ({
+    /** File name of the capture, without extension. */
+    readonly name: string;
+    /** Write a `t` column (seconds) to the CSV (default false). */
+    readonly timeColumn?: boolean;
+  } & Partial<SimulationOptions>)[];
+  /** Whether the descriptor states the accumulated dispersion (default true). */
   readonly statesDispersion?: boolean;
   /** Whether the descriptor states the receiver's skews, as a calibrated front end knows them (default true). */
   readonly statesSkew?: boolean;

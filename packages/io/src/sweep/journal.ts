@@ -3,9 +3,13 @@ import type { SweepRow } from './result-row.js';
 
 /** One stored result: the row and what it was made from. */
 export interface JournalEntry {
+  /** The capture's key: its path relative to the sweep root. */
   readonly capture: string;
+  /** SHA-256 of its data, descriptor and reference bytes. */
   readonly inputSha256: string;
+  /** SHA-256 of the library version and the analysis settings. */
   readonly settingsSha256: string;
+  /** The result row. */
   readonly row: SweepRow;
 }
 

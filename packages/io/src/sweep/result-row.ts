@@ -46,7 +46,9 @@ export const RESULT_COLUMNS = [
   'pipeline_sha256',
 ] as const;
 
+/** One column name of the results table. */
 export type ResultColumn = (typeof RESULT_COLUMNS)[number];
+/** One row of the results table: a value (or null) per column. */
 export type SweepRow = Readonly<Record<ResultColumn, number | string | boolean | null>> & ResultRow;
 
 type Figures = { ber: number | null; snrDb: number | null; gmi: number | null };

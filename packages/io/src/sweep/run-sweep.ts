@@ -11,11 +11,13 @@ import { writeResultsCsv, writeResultsTableArrow } from './results-table.js';
 import type { SweepInputs } from './sweep-inputs.js';
 import { runOnWorkers } from './worker-pool.js';
 
+/** Options of {@link runSweep}. */
 export interface SweepOptions {
   /** Output folder: results.csv, results.arrow and the journal. */
   readonly out: string;
   /** Worker threads (≥ 1). */
   readonly jobs: number;
+  /** Analysis settings applied to every capture (descriptor overrides and receiver options). */
   readonly settings: AnalysisSettings;
   /** Called on the main thread as each capture finishes (for a progress bar). */
   readonly onProgress?: (key: string, analysed: boolean) => void;
@@ -23,6 +25,7 @@ export interface SweepOptions {
 
 /** What a sweep did. */
 export interface SweepReport {
+  /** Captures in the sweep. */
   readonly captures: number;
   /** Captures analysed in this run. */
   readonly analysed: number;
@@ -30,8 +33,11 @@ export interface SweepReport {
   readonly skipped: number;
   /** Rows whose analysis failed or whose capture could not be read. */
   readonly failed: number;
+  /** Path of results.csv. */
   readonly csvPath: string;
+  /** Path of results.arrow. */
   readonly arrowPath: string;
+  /** Path of the resume journal. */
   readonly journalPath: string;
   /** The table, one row per capture in the sweep's order. */
   readonly rows: readonly SweepRow[];

@@ -13,6 +13,7 @@ export interface SweepCapture {
 
 /** What a sweep runs on. */
 export interface SweepInputs {
+  /** Whether a folder or a manifest was given. */
   readonly kind: 'folder' | 'manifest';
   /** The folder the keys are relative to: the folder swept, or the manifest's folder. */
   readonly root: string;

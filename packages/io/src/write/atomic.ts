@@ -4,12 +4,17 @@ import { basename, dirname, join } from 'node:path';
 
 /** Thrown when an output would replace a file that must be kept. */
 export class OutputExistsError extends Error {
+  /** Always 'OutputExistsError'. */
   override readonly name = 'OutputExistsError';
-  constructor(readonly path: string) {
+  constructor(
+    /** The file that exists. */
+    readonly path: string,
+  ) {
     super(`${path}: already exists; refusing to overwrite it (choose another output folder or remove the file)`);
   }
 }
 
+/** Options of {@link writeFileAtomic} and the writers built on it. */
 export interface AtomicWriteOptions {
   /** Replace an existing file (default false: an existing file is an error). */
   readonly overwrite?: boolean;

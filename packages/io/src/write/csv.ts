@@ -9,6 +9,7 @@ function num(v: number): string {
   return Object.is(v, -0) ? '0' : String(v);
 }
 
+/** Options of {@link writeCaptureCsv}. */
 export interface CaptureCsvOptions extends AtomicWriteOptions {
   /** Comment lines written first, each prefixed with '# '. */
   readonly comments?: readonly string[];
