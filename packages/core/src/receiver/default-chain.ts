@@ -86,7 +86,7 @@ export interface ReceiverSettings {
     readonly coarseFrequency?: Omit<CoarseFrequencyOptions<'twoSps'>, 'domain'>;
     /** Options of the `timing` slot ({@link gardnerClockRecovery}). */
     readonly timing?: GardnerOptions;
-    /** Options of the `equalizer` slot (the `equalizer` stage), over the chain's own. */
+    /** Options of the `equalizer` slot ({@link butterflyEqualizer}), over the chain's own. */
     readonly equalizer?: Partial<EqualizerOptions>;
     /** Options of the `frequency` slot ({@link frequencyOffsetRecovery}). */
     readonly frequency?: FrequencyOffsetOptions;
