@@ -81,7 +81,7 @@ export function scratchProject(prefix: string): string {
           types: ['node'],
         },
         include: ['**/*.ts'],
-        exclude: ['node_modules'],
+        exclude: ['**/node_modules', '*/docs'],
       },
       null,
       2,

@@ -3,7 +3,7 @@
 // `npx tsc -b packages/core packages/metrics packages/io`), so that no guide
 // goes stale. TypeScript samples are type-checked and compiled with the
 // workspace's tsc against the packages' declarations.
-import { mkdirSync, rmSync, writeFileSync } from 'node:fs';
+import { existsSync, mkdirSync, rmSync, symlinkSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { compileTypeScript, guideSamples, ROOT, runFile, type Sample, scratchProject } from './guide-samples.js';
@@ -21,6 +21,11 @@ describe('guide samples', () => {
     samples.forEach((s, i) => {
       const dir = join(project, s.guide.replace(/\.md$/, ''));
       mkdirSync(dir, { recursive: true });
+      // A sample may run an example as from the repository root: docs/examples/….
+      if (!existsSync(join(dir, 'docs'))) {
+        mkdirSync(join(dir, 'docs'));
+        symlinkSync(join(ROOT, 'docs/examples'), join(dir, 'docs/examples'));
+      }
       const file = join(dir, `sample-${String(i).padStart(2, '0')}${EXTENSION[s.lang]}`);
       writeFileSync(file, `${s.code}\n`);
       files.set(s, s.lang === 'ts' ? file.replace(/\.ts$/, '.js') : file);
