@@ -54,7 +54,7 @@ describe('packed and installed packages', () => {
     mkdirSync(app);
     writeFileSync(join(app, 'package.json'), '{ "name": "consumer", "private": true, "type": "module" }\n');
     run('npm', ['install', '--no-audit', '--no-fund', '--prefer-offline', '--loglevel=error', ...PACKAGES.map(tarball)], app);
-  });
+  }, 300_000); // a cold npm cache fetches some 250 packages
   afterAll(() => rmSync(work, { recursive: true, force: true }));
 
   it('ships dist, declarations and the licence, with workspace:* rewritten to versions', () => {
