@@ -21,6 +21,7 @@ export interface LinewidthOptions {
  * i.e. the increment variance per symbol divided by 2πT. Variances (not mean
  * squares) so that a residual frequency offset, a constant mean increment,
  * does not count. Streaming, O(1) per symbol.
+ * @example const acc = new LinewidthAccumulator(); for (const theta of phaseTrack) acc.push(theta); acc.linewidthHz(32e9);
  */
 export class LinewidthAccumulator {
   private readonly l1: number;

@@ -57,6 +57,7 @@ export interface BlindDispersionEstimate {
  * @param y the y field, the same length
  * @param sampleRate Sa/s (2 × the symbol rate)
  * @throws RangeError for an empty range, fewer than 1,024 samples or a sample count that is not a power of two
+ * @example const { psPerNm } = estimateDispersion(block.x, block.y, 64e9); // block: 2 samples per symbol at 32 GBd
  */
 export function estimateDispersion(
   x: ComplexArray,

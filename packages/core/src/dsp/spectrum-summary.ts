@@ -46,6 +46,7 @@ export interface SpectrumSummary {
  * integrate P − N₀ over |f − fc| ≤ 0.75·B₃. Valid for β ≤ 0.5; the spectrum is
  * treated as periodic, so a band that wraps around ±fs/2 is handled.
  * @throws RangeError when the spectrum holds no signal above its floor
+ * @example const s = summarizeSpectrum(welchPsd(block.x, 64e9)); s.symbolRateBd;
  */
 export function summarizeSpectrum(s: PowerSpectrum): SpectrumSummary {
   const { psd, resolutionHz: df } = s;

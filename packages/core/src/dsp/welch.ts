@@ -172,6 +172,7 @@ export class WelchEstimator {
  * Welch's power spectral density of one complex signal (see {@link WelchEstimator}).
  * @param x N complex samples, N ≥ segmentLength
  * @throws OptionError for bad options; RangeError when x is shorter than a segment
+ * @example const psd = welchPsd(block.x, 64e9, { segmentLength: 2048 }); psd.frequency.length; // 2048
  */
 export function welchPsd(x: ComplexArray, sampleRate: number, options: WelchOptions = {}): PowerSpectrum {
   const w = new WelchEstimator(sampleRate, options);

@@ -71,6 +71,7 @@ export function orthogonalizeIq(options: OrthogonalizeIqOptions = {}): Stage<'ch
  * The correction matrix [a, b, c, d] (I' = a·I + b·Q, Q' = c·I + d·Q) from
  * the second moments P_I, P_Q, C of one polarization. Pure.
  * @throws RangeError when the moments are not those of two independent axes (P ≤ 0 or |ρ| ≥ 1)
+ * @example const [a, b, c, d] = orthogonalizationMatrix('gsop', 1, 1, 0.1); // I' = a·I + b·Q, Q' = c·I + d·Q
  */
 export function orthogonalizationMatrix(
   method: OrthogonalizationMethod,

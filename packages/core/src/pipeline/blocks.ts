@@ -62,12 +62,18 @@ export interface FieldBlock<D extends 'field' | 'twoSps' | 'symbols' = 'field' |
 /** Any block. */
 export type AnyBlock = BlockOf<Domain>;
 
-/** Number of samples (per channel or per polarization) in a block. */
+/**
+ * Number of samples (per channel or per polarization) in a block.
+ * @example blockLength({ domain: 'channels', ...sim.channels, samplesPerSymbol: 2 }) // samples per channel
+ */
 export function blockLength(block: AnyBlock): number {
   return block.domain === 'channels' ? block.xi.length : block.x.length >> 1;
 }
 
-/** A new block of the same domain and timing with other data (copied by reference). */
+/**
+ * A new block of the same domain and timing with other data (copied by reference).
+ * @example const b = fieldBlock('symbols', x, y, 32e9, 1);
+ */
 export function fieldBlock<D extends 'field' | 'twoSps' | 'symbols'>(
   domain: D,
   x: ComplexArray,
@@ -81,7 +87,10 @@ export function fieldBlock<D extends 'field' | 'twoSps' | 'symbols'>(
   return { domain, x, y, sampleRate, samplesPerSymbol };
 }
 
-/** An empty block of a domain with the given timing. */
+/**
+ * An empty block of a domain with the given timing.
+ * @example emptyBlock('twoSps', 64e9, 2) // zero samples, for a stage with nothing to emit yet
+ */
 export function emptyBlock<D extends Domain>(domain: D, sampleRate: number, samplesPerSymbol: number): BlockOf<D> {
   if (domain === 'channels') {
     const z = new Float64Array(0);
@@ -90,7 +99,10 @@ export function emptyBlock<D extends Domain>(domain: D, sampleRate: number, samp
   return fieldBlock(domain as 'field', complexArray(0), complexArray(0), sampleRate, samplesPerSymbol) as BlockOf<D>;
 }
 
-/** Samples `[start, end)` of a block, copied. */
+/**
+ * Samples `[start, end)` of a block, copied.
+ * @example const first = sliceBlock(block, 0, 4096); // samples 0…4095
+ */
 export function sliceBlock<B extends AnyBlock>(block: B, start: number, end: number): B {
   if (block.domain === 'channels') {
     return {
@@ -107,6 +119,7 @@ export function sliceBlock<B extends AnyBlock>(block: B, start: number, end: num
 /**
  * Concatenates blocks of one domain; their timing is taken from the first.
  * @throws RangeError when given no block or blocks of several domains
+ * @example const whole = concatBlocks([stage.process(a), stage.process(b), stage.flush() ?? emptyBlock('symbols', 32e9, 1)]);
  */
 export function concatBlocks<B extends AnyBlock>(blocks: readonly B[]): B {
   if (blocks.length === 0) throw new RangeError('concatBlocks: expected at least one block');

@@ -65,6 +65,7 @@ export type DiagnosticsOf<S> = S extends Stage<Domain, Domain, infer D> ? D : ne
 /**
  * Thrown when a stage's options are out of range or inconsistent: names the
  * stage, the option, what was expected and what was received.
+ * @example throw new OptionError('my-stage', 'halfWindow', 'an integer ≥ 1', 0); // "my-stage: option 'halfWindow' expected an integer ≥ 1, received 0"
  */
 export class OptionError extends RangeError {
   /** Always 'OptionError'. */
@@ -95,6 +96,7 @@ function formatValue(v: unknown): string {
 /**
  * Thrown when a block does not fit a stage (wrong domain, length mismatch,
  * timing change mid-stream).
+ * @example throw new BlockError(`${this.name}: expected a 'symbols' block, received '${block.domain}'`);
  */
 export class BlockError extends RangeError {
   /** Always 'BlockError'. */

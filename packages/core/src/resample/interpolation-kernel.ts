@@ -32,6 +32,7 @@ const DESIGN_MARGIN_DB = 3;
  * are approximate. Each table row is scaled to unit
  * sum (unit gain at DC). Between rows the coefficients are interpolated
  * linearly; with 1024 rows that error is below −110 dB for f_c ≤ 0.5.
+ * @example const k = new InterpolationKernel({ passband: 0.4, stopband: 0.6, attenuationDb: 70 }); const row = new Float64Array(k.taps); k.coefficients(0.25, row);
  */
 export class InterpolationKernel {
   /** H: taps on each side; the kernel has 2H taps. */

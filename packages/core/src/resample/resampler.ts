@@ -18,6 +18,7 @@ import { dotComplex, InterpolationKernel } from './interpolation-kernel.js';
  * the output ends at the last output instant before the end of the input
  * (⌈N_in/r⌉ samples). Since t_m is computed from m alone, the phase carries
  * across blocks exactly.
+ * @example const r = new Resampler(80e9, 64e9); const out = r.process(block.x, block.y); const tail = r.flush();
  */
 export class Resampler {
   /** Input samples per output sample. */

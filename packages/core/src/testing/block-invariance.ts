@@ -31,6 +31,7 @@ export interface BlockInvarianceResult {
  * block, then `trials` random splittings, and compares the concatenated
  * outputs sample by sample. A splitting is also tried after `reset()` on a
  * used stage, so that reset restores the initial state.
+ * @example expect(checkBlockInvariance(() => viterbiViterbi({ modulation: 'qpsk' }), symbolsBlock).ok).toBe(true);
  */
 export function checkBlockInvariance<In extends Domain, Out extends Domain>(
   make: () => Stage<In, Out, unknown>,

@@ -83,6 +83,7 @@ export function gardnerClockRecovery(options: GardnerOptions = {}): Stage<'twoSp
  * Slope at τ = 0 of the Gardner detector's mean output per unit symbol
  * power for raised-cosine pulses g(t) of roll-off β (t in symbols):
  *   S(τ) = Σₘ g(m − ½ + τ)·[g(m + τ) − g(m − 1 + τ)]
+ * @example gardnerDetectorGain(0.1) // the S-curve slope at zero timing error, for roll-off 0.1
  */
 export function gardnerDetectorGain(rollOff: number): number {
   const s = (tau: number) => {

@@ -52,7 +52,10 @@ export interface CaptureDescription {
   blocksAsync(options?: { readonly blockSize?: number }): AsyncGenerator<ChannelBlock, void, undefined>;
 }
 
-/** The sidecar descriptor path of a data file: same folder, same name, `.json`. */
+/**
+ * The sidecar descriptor path of a data file: same folder, same name, `.json`.
+ * @example descriptorPathFor('lab/run-07.csv') // 'lab/run-07.json'
+ */
 export function descriptorPathFor(dataPath: string): string {
   return join(dirname(dataPath), `${basename(dataPath, extname(dataPath))}.json`);
 }
@@ -62,6 +65,7 @@ export function descriptorPathFor(dataPath: string): string {
  * (the same-named `.csv`, `.arrow` or `.arrows` beside it).
  * @throws InputError when the file does not exist, has no data extension, or
  *   the descriptor has no single data file beside it
+ * @example resolveDataPath('lab/run-07.json') // 'lab/run-07.csv' (or .arrow, whichever exists)
  */
 export function resolveDataPath(path: string): string {
   const ext = extname(path).toLowerCase();
@@ -120,6 +124,7 @@ function metadataFields(meta: ReadonlyMap<string, string>): Map<string, FieldVal
  * @throws InputError naming the file, line, column and field of any problem:
  *   no descriptor, a bad field, a missing or malformed reference, a reference
  *   of another modulation, no sample rate
+ * @example const c = openCapture('lab/run-07.csv', { modulation: '16qam' }); for (const block of c.blocks()) chain.process(block);
  */
 export function openCapture(path: string, overrides: Readonly<Record<string, unknown>> = {}): CaptureDescription {
   const dataPath = resolveDataPath(path);
@@ -205,6 +210,7 @@ export function openCapture(path: string, overrides: Readonly<Record<string, unk
 /**
  * Loads reference symbols by extension: `.csv` or `.arrow`/`.arrows`.
  * @throws InputError naming the descriptor when the file is missing or of another type
+ * @example const ref = loadReference('tx-symbols.csv', 'lab/run-07.json'); // CSV or Arrow, checked
  */
 export function loadReference(path: string, descriptorFile: string, written = path): DualPol {
   if (!existsSync(path)) {
@@ -227,6 +233,7 @@ export function loadReference(path: string, descriptorFile: string, written = pa
  * (a reference file has no descriptor). Names starting with '.' are skipped
  * (temporary files of atomic writes, hidden folders).
  * @returns data file paths, sorted
+ * @example listCaptures('osnr-sweep') // ['osnr-sweep/a/run-01.csv', 'osnr-sweep/run-02.arrow', …]
  */
 export function listCaptures(dir: string): string[] {
   const found: string[] = [];

@@ -96,6 +96,7 @@ export function parseDescriptor(text: string, file: string): CaptureDescriptor {
 /**
  * Reads a descriptor file.
  * @throws InputError as {@link parseDescriptor}, or when the file cannot be read
+ * @example const d = readDescriptor('lab/run-07.json'); d.symbolRate;
  */
 export function readDescriptor(path: string): CaptureDescriptor {
   let text: string;

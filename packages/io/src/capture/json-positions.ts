@@ -72,6 +72,7 @@ const MAX_DEPTH = 64;
  * InputErrors naming the line and column (JSON.parse gives neither in every
  * engine). Repeated keys in one object are refused.
  * @throws InputError for a syntax error, a repeated key or nesting deeper than 64
+ * @example parseJsonWithPositions('{"a": 1}', 'x.json') // an object whose member a is at line 1, column 7
  */
 export function parseJsonWithPositions(text: string, file: string): PositionedJson {
   const p = new JsonReader(text, file);

@@ -152,6 +152,7 @@ export interface InspectReport {
 /**
  * Inspects a capture, streaming it once (memory: a block and the spectrum accumulators).
  * @throws InputError for bad input; UsageError when the capture is shorter than 64 samples
+ * @example inspectCapture('lab/run-07.csv').symbolRate.estimateBd
  */
 export function inspectCapture(path: string, options: { sampleRate?: number; segmentLength?: number } = {}): InspectReport {
   const dataPath = resolveDataPath(path);

@@ -44,6 +44,7 @@ Exit codes: 0 done, 1 the analysis failed, 2 bad usage or bad input.
 /**
  * Runs the command line; returns the exit code, or a promise of it for a
  * command that works asynchronously (sweep).
+ * @example process.exitCode = await main(['analyze', 'lab/run-07.csv', '--json']);
  */
 export function main(
   argv: readonly string[],

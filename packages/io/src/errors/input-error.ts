@@ -6,6 +6,7 @@
  * The message reads `FILE:LINE:COLUMN: WHAT: expected EXPECTED, received RECEIVED`;
  * the parts that do not apply are left out (a row of an Arrow file has no
  * line; a whole-file problem has no position).
+ * @example throw new InputError({ file: 'run-07.json', line: 3, column: 17 }, "field 'symbolRate'", 'a positive number of Bd', 'the string "32 GBd"');
  */
 export class InputError extends Error {
   /** Always 'InputError'. */

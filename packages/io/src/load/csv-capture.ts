@@ -218,6 +218,7 @@ export function* readCsvCapture(path: string, options: CsvCaptureOptions = {}): 
 /**
  * Reads a capture CSV held in memory (same format and errors as {@link readCsvCapture});
  * `name` stands for the file in messages.
+ * @example for (const block of readCsvCaptureBytes(bytes, 'upload.csv', { sampleRate: 80e9 })) chain.process(block);
  */
 export function* readCsvCaptureBytes(
   bytes: Uint8Array,
@@ -240,6 +241,7 @@ export function* readCsvCaptureBytes(
 /**
  * The asynchronous form of {@link readCsvCapture} (reads with a file handle;
  * same blocks, same errors).
+ * @example for await (const block of readCsvCaptureAsync('run-07.csv', { sampleRate: 80e9 })) chain.process(block);
  */
 export async function* readCsvCaptureAsync(
   path: string,
@@ -265,6 +267,7 @@ export async function* readCsvCaptureAsync(
  * the time column) and an optional time column. The files must have the
  * same number of rows and agree on the sample rate.
  * @throws InputError for any problem of a file, or when the files differ in length or rate
+ * @example readCsvCaptureFiles({ xi: 'ch1.csv', xq: 'ch2.csv', yi: 'ch3.csv', yq: 'ch4.csv' }, { sampleRate: 80e9 })
  */
 export function* readCsvCaptureFiles(
   files: ChannelFiles,
@@ -317,6 +320,7 @@ export function* readCsvCaptureFiles(
 /**
  * Loads a whole capture CSV into one block (memory: the capture itself).
  * @throws InputError as {@link readCsvCapture}
+ * @example const block = loadCsvCapture('run-07.csv', { sampleRate: 80e9, columns: { xi: 'CH1', xq: 'CH2', yi: 'CH3', yq: 'CH4' } });
  */
 export function loadCsvCapture(path: string, options: CsvCaptureOptions = {}): ChannelBlock {
   return concatBlocks([...readCsvCapture(path, options)]);

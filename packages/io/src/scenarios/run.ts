@@ -34,6 +34,7 @@ export interface RunScenarioOptions {
  * Simulates every capture of a scenario into `outDir`: per capture a CSV
  * (`<name>.csv`), its descriptor (`<name>.json`) and the transmitted symbols
  * (`<name>-reference.csv`, which has no descriptor of its own).
+ * @example runScenario(builtInScenario('qpsk-b2b')!, 'captures', { symbols: 16384 });
  */
 export function runScenario(scenario: Scenario, outDir: string, options: RunScenarioOptions = {}): WrittenCapture[] {
   mkdirSync(outDir, { recursive: true });

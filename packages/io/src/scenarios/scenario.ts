@@ -31,7 +31,10 @@ export interface Scenario {
   readonly statesSkew?: boolean;
 }
 
-/** Deep merge of plain objects: `over` wins; arrays and values replace. */
+/**
+ * Deep merge of plain objects: `over` wins; arrays and values replace.
+ * @example mergeOptions({ channel: { esN0Db: 10, linewidthHz: 1e5 } }, { channel: { esN0Db: 12 } }) // { channel: { esN0Db: 12, linewidthHz: 1e5 } }
+ */
 export function mergeOptions<T extends object>(base: T, over: Partial<T>): T {
   const out: Record<string, unknown> = { ...(base as Record<string, unknown>) };
   for (const [k, v] of Object.entries(over as Record<string, unknown>)) {
@@ -104,7 +107,10 @@ export const BUILT_IN_SCENARIOS: readonly Scenario[] = [
   },
 ];
 
-/** The built-in scenario of this name, or undefined. */
+/**
+ * The built-in scenario of this name, or undefined.
+ * @example builtInScenario('metro-16qam')?.captures.length
+ */
 export function builtInScenario(name: string): Scenario | undefined {
   return BUILT_IN_SCENARIOS.find((s) => s.name === name);
 }

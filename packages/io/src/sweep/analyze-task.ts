@@ -41,6 +41,7 @@ export type SweepOutcome =
  * analyses it with the default receiver. A bad capture (InputError) becomes
  * a row with check 'input'; an unexpected error a row with check 'error'.
  * Never throws.
+ * @example runSweepTask({ key: 'run-07.csv', path: 'lab/run-07.csv', storedInputSha256: null }, {})
  */
 export function runSweepTask(task: SweepTask, settings: AnalysisSettings): SweepOutcome {
   const inputSha256 = captureInputHash(task.path);

@@ -21,6 +21,7 @@ export const JOURNAL_FILE = 'journal.jsonl';
  * line that does not parse (the last line of a run killed while writing it)
  * is ignored, so its capture is analysed again.
  * @returns the entries, later ones after earlier ones; empty when the file does not exist
+ * @example readJournal('osnr-sweep-sweep/journal.jsonl').map((e) => e.capture)
  */
 export function readJournal(path: string): JournalEntry[] {
   if (!existsSync(path)) return [];

@@ -43,7 +43,10 @@ export interface SweepReport {
   readonly rows: readonly SweepRow[];
 }
 
-/** Default output folder: `<input>-sweep` beside the folder swept or the manifest (its extension dropped). */
+/**
+ * Default output folder: `<input>-sweep` beside the folder swept or the manifest (its extension dropped).
+ * @example defaultSweepOut('data/osnr', 'folder') // 'data/osnr-sweep'
+ */
 export function defaultSweepOut(input: string, kind: 'folder' | 'manifest'): string {
   const trimmed = input.replace(/[/\\]+$/, '');
   return `${kind === 'manifest' ? trimmed.replace(/\.[^./\\]*$/, '') : trimmed}-sweep`;
@@ -63,6 +66,7 @@ const inside = (dir: string, p: string) => {
  * rebuilt from the stored rows, in the sweep's order.
  * @throws InputError when `out` is the swept folder, lies inside it, or
  *   holds an input file
+ * @example const report = await runSweep(sweepInputs('osnr-sweep'), { out: 'results', jobs: 4, settings: {} });
  */
 export async function runSweep(inputs: SweepInputs, options: SweepOptions): Promise<SweepReport> {
   const { out } = options;

@@ -33,6 +33,7 @@ const toKey = (p: string) => p.split(sep).join('/');
  * surrounding white space. The captures keep the manifest's order.
  * @throws InputError when the input does not exist, a folder holds no
  *   capture, a manifest is empty or lists a capture twice (naming the line)
+ * @example sweepInputs('best-two.txt').captures.map((c) => c.key)
  */
 export function sweepInputs(input: string): SweepInputs {
   let isFolder: boolean;
@@ -59,6 +60,7 @@ export function sweepInputs(input: string): SweepInputs {
 /**
  * Reads a manifest (format in {@link sweepInputs}).
  * @throws InputError naming the manifest and line of a capture listed twice, or an empty manifest
+ * @example readManifest('best-two.txt') // the captures listed, in order
  */
 export function readManifest(path: string): SweepCapture[] {
   const root = dirname(path);

@@ -118,6 +118,7 @@ export interface Measurement extends QualityFigures {
 /**
  * Thrown by {@link measure} when the reference was not found in the received
  * symbols: no figure is valid then. `sync` holds what was found.
+ * @example try { measure(rx, ref, 'qpsk'); } catch (e) { if (e instanceof ReferenceNotFoundError) console.log(e.sync.reason); }
  */
 export class ReferenceNotFoundError extends Error {
   /** Always 'ReferenceNotFoundError'. */
