@@ -80,7 +80,7 @@ describe('packed and installed packages', () => {
     expect(out.ok).toBe(true);
     expect(out.samples).toBe(2 * 12288);
     // DP-QPSK at Es/N0 = 10 dB: theory BER = ½·erfc(√(Es/N0 / 2)) = 7.83e-4
-    // (Proakis, Gray-coded QPSK; @stdlib erfc in the metrics tests). Over
+    // (Proakis, Gray-coded QPSK; the value from @stdlib's erfc). Over
     // ~40,000 bits, ~31 errors: a factor 2 either way covers the Poisson
     // spread (±2σ ≈ ±36 %) and the receiver's 0.1–0.3 dB penalty (README).
     expect(out.ber).toBeGreaterThan(7.83e-4 / 2);
