@@ -57,7 +57,10 @@ export function ddLmsRule(
 /** Forgetting factor of the fourth-power phase average used for acquisition. */
 const ACQUIRE_FORGET = 1 - 1 / 16;
 
-/** The DD-LMS rule; see {@link ddLmsRule}. */
+/**
+ * The DD-LMS rule; see {@link ddLmsRule}.
+ * @example const rule: DdLmsRule = ddLmsRule('16qam', 3e-4); rule.loopState(0).phase;
+ */
 export class DdLmsRule implements UpdateRule {
   readonly name = 'dd-lms';
   private readonly levels: number;
