@@ -33,12 +33,20 @@ export interface Sample {
  */
 const MARKER = /^<!-- run(?::\s*prints\s+\/(.+)\/([a-z]*))?\s*-->$/;
 
-export function guideSamples(docsDir: string): Sample[] {
-  const samples: Sample[] = [];
-  for (const file of readdirSync(docsDir)
+/** The guides (docs/*.md) and the packages' READMEs, relative to the repository root. */
+export function documentsWithSamples(): string[] {
+  const guides = readdirSync(join(ROOT, 'docs'))
     .filter((f) => f.endsWith('.md'))
-    .sort()) {
-    const lines = readFileSync(join(docsDir, file), 'utf8').split('\n');
+    .map((f) => `docs/${f}`);
+  return [...guides.sort(), ...['core', 'metrics', 'io'].map((p) => `packages/${p}/README.md`)];
+}
+
+/** The marked samples of the given documents; `guide` names each by its path with '/' turned to '-'. */
+export function guideSamples(documents: readonly string[]): Sample[] {
+  const samples: Sample[] = [];
+  for (const path of documents) {
+    const file = path.replace(/^docs\//, '').replace(/\//g, '-');
+    const lines = readFileSync(join(ROOT, path), 'utf8').split('\n');
     for (let i = 0; i < lines.length; i++) {
       const m = MARKER.exec(lines[i].trim());
       if (!m) continue;

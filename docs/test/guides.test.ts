@@ -1,4 +1,4 @@
-// Every code sample of the guides marked `<!-- run -->` is run here, against
+// Every code sample of the guides (and of the packages' READMEs) marked `<!-- run -->` is run here, against
 // the built packages (the test command builds first; alone, build with
 // `npx tsc -b packages/core packages/metrics packages/io`), so that no guide
 // goes stale. TypeScript samples are type-checked and compiled with the
@@ -6,9 +6,17 @@
 import { existsSync, mkdirSync, rmSync, symlinkSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { compileTypeScript, guideSamples, ROOT, runFile, type Sample, scratchProject } from './guide-samples.js';
+import {
+  compileTypeScript,
+  documentsWithSamples,
+  guideSamples,
+  ROOT,
+  runFile,
+  type Sample,
+  scratchProject,
+} from './guide-samples.js';
 
-const samples = guideSamples(join(ROOT, 'docs'));
+const samples = guideSamples(documentsWithSamples());
 const guides = [...new Set(samples.map((s) => s.guide))];
 const EXTENSION = { ts: '.ts', js: '.mjs', sh: '.sh' } as const;
 
@@ -47,6 +55,8 @@ describe('guide samples', () => {
       'comparing-algorithms.md',
       'sweeps.md',
       'troubleshooting.md',
+      'packages-core-README.md',
+      'packages-metrics-README.md',
     ]) {
       expect(guides, guide).toContain(guide);
     }
