@@ -2,7 +2,7 @@
  * Intradyne core: the signal model, typed streaming pipelines, the receiver
  * stages, modulation, PRBS and a seeded simulator of a dual-polarization
  * coherent link. Pure computation: no file system, no Node-only API.
- * @packageDocumentation
+ * @module @intradyne/core
  */
 
 export {

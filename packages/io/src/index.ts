@@ -2,7 +2,7 @@
  * Intradyne I/O: the only package that touches files. Capture and reference
  * writers, atomic output, simulated scenarios, the HTML reports, and the
  * `intradyne` command.
- * @packageDocumentation
+ * @module @intradyne/io
  */
 
 export {
@@ -23,7 +23,6 @@ export {
   type ArrowWriteOptions,
   type ResultRow,
   writeCaptureArrow,
-  writeEmptyResultsArrow,
   writeResultsArrow,
   writeSymbolsArrow,
 } from './arrow/arrow-write.js';
@@ -76,19 +75,17 @@ export { captureInputHash } from './sweep/input-hash.js';
 export { JOURNAL_FILE, type JournalEntry, readJournal } from './sweep/journal.js';
 export { type MergeReport, mergeShards } from './sweep/merge-shards.js';
 export { RESULT_COLUMNS, type SweepRow, TEXT_COLUMNS } from './sweep/result-row.js';
-export { type ResultsTableFiles, writeResultsTable } from './sweep/results-table.js';
-export { checkSweepOut, defaultSweepOut, runSweep, type SweepOptions, type SweepReport } from './sweep/run-sweep.js';
-export { inShard, type ShardSpec, shardFolderName, shardLabel, shardOf } from './sweep/shard.js';
+export type { ResultsTableFiles } from './sweep/results-table.js';
+export { defaultSweepOut, runSweep, type SweepOptions, type SweepReport } from './sweep/run-sweep.js';
+export { inShard, type ShardSpec, shardOf } from './sweep/shard.js';
 export {
-  listingFingerprint,
   type PlacedRow,
   readShardRecord,
   SHARD_RECORD_FILE,
   SHARD_RECORD_FORMAT,
   type ShardRecord,
-  writeShardRecord,
 } from './sweep/shard-record.js';
-export { type SlurmScriptOptions, shellQuote, slurmScript } from './sweep/slurm-script.js';
+export { type SlurmScriptOptions, slurmScript } from './sweep/slurm-script.js';
 export { readManifest, type SweepCapture, type SweepInputs, sweepInputs } from './sweep/sweep-inputs.js';
 export { type SweepOutputPaths, writeSweepOutputs } from './sweep/sweep-outputs.js';
 export { type AtomicWriteOptions, OutputExistsError, writeFileAtomic } from './write/atomic.js';

@@ -5,7 +5,7 @@
  *
  * A receiver calls {@link measure} once with its decided-on symbols and the
  * reference; the other exports are its parts, usable on their own.
- * @packageDocumentation
+ * @module @intradyne/metrics
  */
 
 // Counting.

@@ -36,6 +36,7 @@ export interface BlindPhaseSearchOptions {
  * window sum (add the new distance, subtract the one leaving), so the cost
  * per symbol is B rotations and decisions whatever N. Symbols outside the
  * stream contribute nothing (a shorter window at both ends).
+ * @example const phase = runKernel(new BlindPhaseSearchKernel(constellation('16qam'), { testPhases: 32, halfWindow: 12 }), symbols.x);
  */
 export class BlindPhaseSearchKernel implements PhaseKernel {
   readonly delay: number;
@@ -146,6 +147,7 @@ export class BlindPhaseSearchKernel implements PhaseKernel {
  * maximum-likelihood step — *from memory*). The fine sum is a running
  * window sum too, so the cost per symbol is B₁ rotations and decisions plus
  * a constant, whatever N₁ and N₂; the look-ahead is N₁ + N₂.
+ * @example const phase = runKernel(new CoarseFinePhaseKernel(constellation('64qam')), symbols.x);
  */
 export class CoarseFinePhaseKernel implements PhaseKernel {
   readonly delay: number;

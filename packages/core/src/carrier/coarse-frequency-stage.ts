@@ -5,9 +5,10 @@ import type { ComplexArray } from '../signal/complex.js';
 import { estimateOffsetPeriodogram } from './fourth-power-periodogram.js';
 import { removeFrequencyOffset } from './frequency-removal.js';
 
-/** Options of {@link coarseFrequencyShift}. */
+/** The waveform domains the stage runs on. */
 type WaveformDomain = 'field' | 'twoSps';
 
+/** Options of {@link coarseFrequencyShift}. */
 export interface CoarseFrequencyOptions<D extends WaveformDomain = 'twoSps'> {
   /** Domain of the waveform: 'twoSps' (default) or 'field' (scope rate). */
   readonly domain?: D;

@@ -6,6 +6,7 @@ import { type ComplexArray, complexArray } from '../signal/complex.js';
  * Quadrant of a complex value, counted counter-clockwise: 0 for re ≥ 0 and
  * im ≥ 0, 1 for re < 0 and im ≥ 0, 2 for both negative, 3 for re ≥ 0 and
  * im < 0. A quarter turn e^(jπ/2) adds one (mod 4) for points off the axes.
+ * @example quadrantOf(-0.7, 0.7) // 1 (second quadrant)
  */
 export function quadrantOf(re: number, im: number): number {
   if (im >= 0) return re >= 0 ? 0 : 1;

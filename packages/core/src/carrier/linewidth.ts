@@ -21,6 +21,7 @@ export interface LinewidthOptions {
  * i.e. the increment variance per symbol divided by 2πT. Variances (not mean
  * squares) so that a residual frequency offset, a constant mean increment,
  * does not count. Streaming, O(1) per symbol.
+ * @example const acc = new LinewidthAccumulator(); for (const theta of phaseTrack) acc.push(theta); acc.linewidthHz(32e9);
  */
 export class LinewidthAccumulator {
   private readonly l1: number;
@@ -73,6 +74,7 @@ export class LinewidthAccumulator {
     return ((v2 - v1) * symbolRate) / (2 * Math.PI * (this.l2 - this.l1));
   }
 
+  /** Forgets every phase seen: back to the state of a new accumulator. */
   reset(): void {
     this.ring.fill(0);
     this.pushed = 0;

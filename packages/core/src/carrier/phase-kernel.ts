@@ -27,6 +27,7 @@ export interface PhaseKernel {
  * Drives a kernel over a whole array (one polarization) and drains it.
  * @param symbols N complex symbols
  * @returns N unwrapped phases, rad
+ * @example const theta = runKernel(new ViterbiViterbiKernel(constellation('qpsk')), x); // one phase per symbol of x
  */
 export function runKernel(kernel: PhaseKernel, symbols: ComplexArray): Float64Array {
   const n = symbols.length >> 1;

@@ -44,12 +44,22 @@ export interface PhaseRecoveryDiagnostics {
   readonly symbols: number;
   /** Combined linewidth estimated from the phase tracks, Hz: the mean of the two polarizations (NaN until enough symbols). */
   readonly linewidthHz: number;
-  readonly linewidthPerPolHz: { readonly x: number; readonly y: number };
+  /** The linewidth estimated on each polarization's phase track, Hz (NaN until enough symbols). */
+  readonly linewidthPerPolHz: {
+    /** From the x polarization, Hz. */
+    readonly x: number;
+    /** From the y polarization, Hz. */
+    readonly y: number;
+  };
+  /** Cycle slips seen in the phase tracks (blind: no reference here). */
   readonly cycleSlips: {
+    /** How they were detected. */
     readonly method: SlipMethod;
     /** Slips of both polarizations. */
     readonly count: number;
+    /** The slips of the x polarization, in symbol order. */
     readonly x: readonly CycleSlip[];
+    /** The slips of the y polarization, in symbol order. */
     readonly y: readonly CycleSlip[];
   };
   /**
@@ -57,9 +67,21 @@ export interface PhaseRecoveryDiagnostics {
    * phase of delivered symbols [i·every, (i + 1)·every), at most
    * {@link PHASE_TRACE_POINTS} points per polarization (see {@link DecimatedTrace}).
    */
-  readonly phaseTrace: { readonly every: number; readonly x: Float64Array; readonly y: Float64Array };
+  readonly phaseTrace: {
+    /** Delivered symbols per point. */
+    readonly every: number;
+    /** Mean phase of the x polarization per point, rad. */
+    readonly x: Float64Array;
+    /** Mean phase of the y polarization per point, rad. */
+    readonly y: Float64Array;
+  };
   /** The unwrapped phase tracks, rad, one value per delivered symbol (with `recordPhase`). */
-  readonly phase?: { readonly x: Float64Array; readonly y: Float64Array };
+  readonly phase?: {
+    /** Phase of the x polarization, rad, one per symbol. */
+    readonly x: Float64Array;
+    /** Phase of the y polarization, rad, one per symbol. */
+    readonly y: Float64Array;
+  };
 }
 
 /** Most points of the decimated phase trace, per polarization. */

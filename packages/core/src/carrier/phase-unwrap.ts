@@ -26,6 +26,7 @@ export const QUARTER_TURN = Math.PI / 2;
 /**
  * Wraps an angle into (−π, π].
  * @param a angle, rad
+ * @example wrapAngle(3 * Math.PI / 2) // −π/2
  */
 export function wrapAngle(a: number): number {
   const w = a - 2 * Math.PI * Math.round(a / (2 * Math.PI));

@@ -21,6 +21,7 @@ export interface PhaseJumpOptions {
  * peaks, of round(J/(π/2)) quarter turns (at least one). A clean step of
  * π/2 at p gives a triangle of height π/2 peaking exactly at k = p.
  * Streaming: O(1) per symbol, look-ahead W.
+ * @example const d = new PhaseJumpSlipDetector(); for (const theta of phaseTrack) d.push(theta); d.finish(); d.slips().length;
  */
 export class PhaseJumpSlipDetector {
   private readonly w: number;
@@ -82,6 +83,7 @@ export class PhaseJumpSlipDetector {
     return this.found;
   }
 
+  /** Forgets the phase history and the slips found: back to the state of a new detector. */
   reset(): void {
     this.ring.fill(0);
     this.pushed = 0;

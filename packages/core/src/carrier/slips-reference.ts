@@ -40,6 +40,7 @@ export interface ReferenceSlipSearchOptions extends ReferenceSlipOptions {
  * window sum passes near zero on its way) counts once as 2, and a suspicion
  * that does not hold (s = 0) is dropped. Streaming: O(1) per symbol, O(W)
  * per slip.
+ * @example const d = new ReferenceSlipDetector(); d.push(rxRe, rxIm, refRe, refIm); d.finish(); d.slips();
  */
 export class ReferenceSlipDetector {
   private readonly w: number;
@@ -106,6 +107,7 @@ export class ReferenceSlipDetector {
     return this.found;
   }
 
+  /** Forgets the running sums and the slips found: back to the state of a new detector. */
   reset(): void {
     this.re.fill(0);
     this.im.fill(0);

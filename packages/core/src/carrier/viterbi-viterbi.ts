@@ -40,6 +40,7 @@ export interface ViterbiViterbiOptions {
  * θₖ = θ̂ₖ + (π/2)·round((θₖ₋₁ − θ̂ₖ)/(π/2)). The window sum is kept as a
  * running sum, so the cost per symbol does not depend on N. Symbols outside
  * the stream count as zero (a shorter window at both ends).
+ * @example const phase = runKernel(new ViterbiViterbiKernel(constellation('qpsk'), { halfWindow: 16 }), symbols.x);
  */
 export class ViterbiViterbiKernel implements PhaseKernel {
   readonly delay: number;

@@ -3,9 +3,11 @@ import { SPEED_OF_LIGHT } from '../physics/link.js';
 import { type ComplexArray, complexArray } from '../signal/complex.js';
 import { cdTapCount } from './dispersion-filter.js';
 
+/** Options of {@link estimateDispersion}: the search range and how much of the signal it uses. */
 export interface BlindDispersionOptions {
-  /** Search range, ps/nm (default −5,000 … 25,000). */
+  /** Lower end of the search range, ps/nm (default −5,000). */
   readonly minPsPerNm?: number;
+  /** Upper end of the search range, ps/nm (default 25,000). */
   readonly maxPsPerNm?: number;
   /** Samples per polarization used by the fine search, a power of two (default 32,768; the coarse scan uses a quarter). */
   readonly samples?: number;
@@ -13,13 +15,19 @@ export interface BlindDispersionOptions {
   readonly wavelengthNm?: number;
 }
 
+/** What {@link estimateDispersion} found. */
 export interface BlindDispersionEstimate {
   /** The estimated accumulated dispersion D·z, ps/nm. */
   readonly dispersionPsPerNm: number;
   /** Cost at the estimate (the normalized fourth moment, summed over x and y). */
   readonly cost: number;
   /** The coarse scan: candidate dispersions (ps/nm) and their costs. */
-  readonly scan: { readonly psPerNm: Float64Array; readonly cost: Float64Array };
+  readonly scan: {
+    /** Candidate accumulated dispersions, ps/nm, ascending. */
+    readonly psPerNm: Float64Array;
+    /** Cost of each candidate (same length as `psPerNm`). */
+    readonly cost: Float64Array;
+  };
 }
 
 /**
@@ -45,9 +53,11 @@ export interface BlindDispersionEstimate {
  * treated as periodic; the edges where the circular compensation wraps
  * (half the Savory tap count of the largest candidate) are left out of J.
  *
- * @param x, y the field at 2 samples per symbol (at least the requested samples, else all of them, at least 1,024)
+ * @param x the x field at 2 samples per symbol (at least the requested samples, else all of them, at least 1,024)
+ * @param y the y field, the same length
  * @param sampleRate Sa/s (2 × the symbol rate)
  * @throws RangeError for an empty range, fewer than 1,024 samples or a sample count that is not a power of two
+ * @example const { psPerNm } = estimateDispersion(block.x, block.y, 64e9); // block: 2 samples per symbol at 32 GBd
  */
 export function estimateDispersion(
   x: ComplexArray,

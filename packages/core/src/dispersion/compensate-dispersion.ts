@@ -5,11 +5,17 @@ import { type BlindDispersionOptions, estimateDispersion } from './blind-dispers
 import { cdTapCount, dispersionCompensationResponse } from './dispersion-filter.js';
 import { OverlapSave, overlapSaveSize } from './overlap-save.js';
 
+/** Options of {@link compensateDispersion}: exactly one of `dispersionPsPerNm`, `fibre` or `blind`. */
 export interface CompensateDispersionOptions {
   /** Accumulated dispersion D·z to remove, ps/nm (exclusive with `fibre` and `blind`). */
   readonly dispersionPsPerNm?: number;
   /** The same as a fibre: D in ps/(nm·km) times its length in km. */
-  readonly fibre?: { readonly dispersionPsPerNmKm: number; readonly lengthKm: number };
+  readonly fibre?: {
+    /** Dispersion parameter D, ps/(nm·km) (about 17 for standard single-mode fibre at 1550 nm). */
+    readonly dispersionPsPerNmKm: number;
+    /** Fibre length, km. */
+    readonly lengthKm: number;
+  };
   /**
    * Estimate the dispersion blindly on the first `blind.samples` samples
    * (default 32,768 per polarization, held back until they have arrived)
@@ -22,6 +28,7 @@ export interface CompensateDispersionOptions {
   readonly fftSize?: number;
 }
 
+/** What {@link compensateDispersion} did. */
 export interface CompensateDispersionDiagnostics {
   /** Dispersion removed, ps/nm (NaN until known). */
   readonly dispersionPsPerNm: number;
@@ -29,7 +36,9 @@ export interface CompensateDispersionDiagnostics {
   readonly estimated: boolean;
   /** Savory's tap count for it at the block's rate (0 until known). */
   readonly taps: number;
+  /** FFT size of the overlap-save blocks, samples (0 until known). */
   readonly fftSize: number;
+  /** Samples each block shares with the previous one, the filter's memory (0 until known). */
   readonly overlap: number;
   /** The blind estimate's cost at its minimum (NaN when given). */
   readonly cost: number;

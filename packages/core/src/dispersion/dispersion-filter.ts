@@ -30,6 +30,7 @@ export function cdTapCount(dispersionPsPerNm: number, sampleRate: number, wavele
  *
  * Sign convention of the library: the fibre (and the simulator) multiplies
  * the field spectrum by exp(jφ); compensation multiplies by exp(−jφ).
+ * @example const H = dispersionCompensationResponse(4096, 64e9, 1360); // 80 km of standard fibre at 1550 nm
  */
 export function dispersionCompensationResponse(
   fftSize: number,

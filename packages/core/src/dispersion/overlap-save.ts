@@ -19,9 +19,12 @@ import { type ComplexArray, complexArray, concatComplex } from '../signal/comple
  * A response given directly in the frequency domain (such as the dispersion
  * all-pass) has no strictly finite impulse response: the part of it beyond
  * ±P wraps around, which the overlap must make negligible.
+ * @example const os = new OverlapSave(dispersionCompensationResponse(1024, 64e9, 1360), 200); const y = os.process(x); const tail = os.flush();
  */
 export class OverlapSave {
+  /** FFT size N, samples. */
   readonly fftSize: number;
+  /** Samples P shared with the previous block; each FFT delivers N − P new samples. */
   readonly overlap: number;
   private readonly response: ComplexArray;
   private readonly step: number;
@@ -55,6 +58,7 @@ export class OverlapSave {
     this.reset();
   }
 
+  /** Back to the start of a stream: P zeros stand for the samples before it. */
   reset(): void {
     // P zeros stand for the samples before the stream.
     this.buf = new Float64Array(2 * Math.max(this.fftSize, 1024));
@@ -137,6 +141,7 @@ export class OverlapSave {
 /**
  * The FFT size (a power of two) that minimizes the work per output sample,
  * N·log₂N/(N − overlap), among N ≥ max(2·overlap, 64) up to 2²⁰.
+ * @example overlapSaveSize(200) // the power-of-two FFT size with the least work per output sample
  */
 export function overlapSaveSize(overlap: number): number {
   let best = 64;
@@ -156,6 +161,7 @@ export function overlapSaveSize(overlap: number): number {
  * Frequency response, on an N-point FFT grid, of centred taps h[−P … P]
  * (2P + 1 complex values, the middle one at lag 0): H[k] = Σ h[m]·e^(−j2πkm/N).
  * @throws RangeError when the taps are an even number or longer than N
+ * @example const H = responseOfCenteredTaps(taps, 1024); // taps: an odd number of complex taps
  */
 export function responseOfCenteredTaps(taps: ComplexArray, fftSize: number): ComplexArray {
   const L = taps.length >> 1;

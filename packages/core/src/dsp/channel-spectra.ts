@@ -10,8 +10,11 @@ export interface ChannelSpectra {
   readonly frequencyHz: Float64Array;
   /** One-sided PSD per channel, channel units² / Hz (twice the two-sided value, DC and fs/2 once). */
   readonly psd: { readonly [C in ChannelName]: Float64Array };
+  /** Bin spacing, Hz: fs/N for segments of N samples. */
   readonly resolutionHz: number;
+  /** Welch segments averaged per channel (0 when fewer than N samples came). */
   readonly segments: number;
+  /** Sample rate of the channels, Sa/s. */
   readonly sampleRate: number;
 }
 
@@ -29,8 +32,14 @@ export class ChannelSpectraEstimator {
   private readonly welch: WelchEstimator[];
   private scratch = complexArray(0);
 
+  /**
+   * @param sampleRate sample rate of the channels, Sa/s
+   * @param segmentLength Welch segment length N, samples (even, ≥ 8; default 512)
+   */
   constructor(
+    /** Sample rate of the channels, Sa/s. */
     readonly sampleRate: number,
+    /** Welch segment length N, samples. */
     readonly segmentLength = 512,
   ) {
     if (!Number.isInteger(segmentLength) || segmentLength < 8 || segmentLength % 2 !== 0)

@@ -24,12 +24,18 @@ function plan(size: number): FFT {
   return p;
 }
 
-/** True when n is a power of two (n ≥ 2). */
+/**
+ * True when n is a power of two (n ≥ 2).
+ * @example isPowerOfTwo(1024) // true
+ */
 export function isPowerOfTwo(n: number): boolean {
   return n >= 2 && (n & (n - 1)) === 0;
 }
 
-/** Smallest power of two ≥ n (at least 2). */
+/**
+ * Smallest power of two ≥ n (at least 2).
+ * @example nextPowerOfTwo(1000) // 1024
+ */
 export function nextPowerOfTwo(n: number): number {
   let p = 2;
   while (p < n) p *= 2;
@@ -39,12 +45,16 @@ export function nextPowerOfTwo(n: number): number {
 /**
  * Forward DFT of `input` (N complex samples) into `out` (a new array when not given).
  * `out` must not be `input`.
+ * @example const X = fft(fromParts([1, 0, 0, 0], [0, 0, 0, 0])); // [1, 0, 1, 0, 1, 0, 1, 0]: an impulse is flat
  */
 export function fft(input: ComplexArray, out?: ComplexArray): ComplexArray {
   return transform(input, out, false);
 }
 
-/** Inverse DFT with 1/N scaling. `out` must not be `input`. */
+/**
+ * Inverse DFT with 1/N scaling. `out` must not be `input`.
+ * @example const x = ifft(fft(signal)); // signal again, to rounding
+ */
 export function ifft(input: ComplexArray, out?: ComplexArray): ComplexArray {
   return transform(input, out, true);
 }
@@ -144,6 +154,7 @@ function bluestein(input: Float64Array, out: Float64Array, inverse: boolean): vo
 /**
  * Frequency in Hz of DFT bin k for an N-point transform at `sampleRate`:
  * bins from N/2 on are negative frequencies (the Nyquist bin of an even N is −fs/2).
+ * @example binFrequency(3, 8, 64e9) // 24e9 Hz; bin 5 of 8 is −24e9 Hz
  */
 export function binFrequency(k: number, n: number, sampleRate: number): number {
   return ((k < n / 2 ? k : k - n) * sampleRate) / n;

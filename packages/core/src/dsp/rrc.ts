@@ -9,7 +9,10 @@
  * a matched receiver filter of this shape together make P(f).
  */
 
-/** Raised-cosine spectrum at frequency `f` (Hz), symbol rate `symbolRate` (Bd), roll-off β ∈ [0, 1]. */
+/**
+ * Raised-cosine spectrum at frequency `f` (Hz), symbol rate `symbolRate` (Bd), roll-off β ∈ [0, 1].
+ * @example raisedCosineSpectrum(0, 32e9, 0.1) // 1 in the flat band; 0.5 at f = Rs/2
+ */
 export function raisedCosineSpectrum(f: number, symbolRate: number, rollOff: number): number {
   const a = Math.abs(f) / symbolRate; // f·T
   const lo = (1 - rollOff) / 2;
@@ -19,7 +22,10 @@ export function raisedCosineSpectrum(f: number, symbolRate: number, rollOff: num
   return 0.5 * (1 + Math.cos((Math.PI / rollOff) * (a - lo)));
 }
 
-/** Root-raised-cosine amplitude response √P(f). */
+/**
+ * Root-raised-cosine amplitude response √P(f).
+ * @example rootRaisedCosineSpectrum(16e9, 32e9, 0.1) // √0.5 at the band edge
+ */
 export function rootRaisedCosineSpectrum(f: number, symbolRate: number, rollOff: number): number {
   return Math.sqrt(raisedCosineSpectrum(f, symbolRate, rollOff));
 }
@@ -27,6 +33,7 @@ export function rootRaisedCosineSpectrum(f: number, symbolRate: number, rollOff:
 /**
  * Validates a roll-off factor.
  * @throws RangeError unless 0 < β ≤ 1
+ * @example checkRollOff(0.1, 'my-filter'); // throws a RangeError for 0 or 1.5
  */
 export function checkRollOff(rollOff: number, where: string): void {
   if (!(rollOff > 0 && rollOff <= 1)) {

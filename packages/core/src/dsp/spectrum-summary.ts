@@ -10,6 +10,7 @@ export interface SpectrumSummary {
   readonly plateauToFloorDb: number;
   /** Edges where the signal (above the floor) falls to half the plateau, Hz. */
   readonly halfPowerLowHz: number;
+  /** Upper half-power edge, Hz. */
   readonly halfPowerHighHz: number;
   /** Width between the half-power edges, Hz: the −3 dB bandwidth. */
   readonly bandwidth3dBHz: number;
@@ -17,7 +18,9 @@ export interface SpectrumSummary {
   readonly centreHz: number;
   /** Band holding 99 % of the power above the floor (0.5 % below, 0.5 % above), Hz. */
   readonly occupiedLowHz: number;
+  /** Upper edge of the 99 % band, Hz. */
   readonly occupiedHighHz: number;
+  /** Width of the 99 % band, Hz. */
   readonly occupiedBandwidthHz: number;
   /** Symbol rate estimate, Bd: the signal power above the floor over the plateau level. */
   readonly symbolRateBd: number;
@@ -43,6 +46,7 @@ export interface SpectrumSummary {
  * integrate P − N₀ over |f − fc| ≤ 0.75·B₃. Valid for β ≤ 0.5; the spectrum is
  * treated as periodic, so a band that wraps around ±fs/2 is handled.
  * @throws RangeError when the spectrum holds no signal above its floor
+ * @example const s = summarizeSpectrum(welchPsd(block.x, 64e9)); s.symbolRateBd;
  */
 export function summarizeSpectrum(s: PowerSpectrum): SpectrumSummary {
   const { psd, resolutionHz: df } = s;

@@ -2,6 +2,7 @@ import { OptionError } from '../pipeline/stage.js';
 import { type ComplexArray, complexArray } from '../signal/complex.js';
 import { fft } from './fft.js';
 
+/** Options of the Welch estimate ({@link welchPsd}, {@link WelchEstimator}). */
 export interface WelchOptions {
   /** Samples per segment (default 1024; at least 8). The resolution is sampleRate / segmentLength. */
   readonly segmentLength?: number;
@@ -23,6 +24,7 @@ export interface PowerSpectrum {
   readonly noiseBandwidthHz: number;
   /** Segments averaged. */
   readonly segments: number;
+  /** Sample rate of the input, Sa/s. */
   readonly sampleRate: number;
 }
 
@@ -54,6 +56,7 @@ export class WelchEstimator {
   private segments = 0;
 
   constructor(
+    /** Sample rate of the input, Sa/s. */
     readonly sampleRate: number,
     private readonly options: WelchOptions = {},
   ) {
@@ -153,7 +156,14 @@ export class WelchEstimator {
   }
 
   /** The options, for reproducibility records. */
-  describe(): { segmentLength: number; overlap: number; window: string } {
+  describe(): {
+    /** Samples per segment. */
+    segmentLength: number;
+    /** Fraction of a segment shared with the next. */
+    overlap: number;
+    /** Window name. */
+    window: string;
+  } {
     return { segmentLength: this.n, overlap: this.options.overlap ?? 0.5, window: this.options.window ?? 'hann' };
   }
 }
@@ -162,6 +172,7 @@ export class WelchEstimator {
  * Welch's power spectral density of one complex signal (see {@link WelchEstimator}).
  * @param x N complex samples, N ≥ segmentLength
  * @throws OptionError for bad options; RangeError when x is shorter than a segment
+ * @example const psd = welchPsd(block.x, 64e9, { segmentLength: 2048 }); psd.frequency.length; // 2048
  */
 export function welchPsd(x: ComplexArray, sampleRate: number, options: WelchOptions = {}): PowerSpectrum {
   const w = new WelchEstimator(sampleRate, options);

@@ -17,17 +17,22 @@
 
 /** Offsets of the four filters in the tap array, in numbers (multiply by L). */
 export const FILTER_XX = 0;
+/** Offset of h_xy (y input to x output) in the tap array, in numbers (multiply by L). */
 export const FILTER_XY = 2;
+/** Offset of h_yx (x input to y output) in the tap array, in numbers (multiply by L). */
 export const FILTER_YX = 4;
+/** Offset of h_yy in the tap array, in numbers (multiply by L). */
 export const FILTER_YY = 6;
 
 /**
  * Butterfly outputs for one symbol.
  * @param taps 8·L numbers (layout above)
  * @param L taps per filter (odd)
- * @param ux, uy interleaved complex delay lines of the two input polarizations
+ * @param ux interleaved complex delay line of the x input polarization
+ * @param uy interleaved complex delay line of the y input polarization
  * @param newest index (in complex samples) of the newest sample of the window, n + c
  * @param out receives [x̂re, x̂im, ŷre, ŷim]
+ * @example butterflyOutput(taps, 11, ux, uy, n + 5, out); // out = [x̂re, x̂im, ŷre, ŷim] of symbol n
  */
 export function butterflyOutput(
   taps: Float64Array,
@@ -81,6 +86,7 @@ export function butterflyOutput(
  *
  * with u the input window and e the rule's error for that output. Every rule
  * of this library (CMA, RDE, DD-LMS) is written in this form; only e differs.
+ * @example updateRow(taps, 11, ux, uy, n + 5, 0, er, ei, 3e-4); // adapt the x row with the error e = er + j·ei
  */
 export function updateRow(
   taps: Float64Array,
@@ -121,6 +127,7 @@ export function updateRow(
  * i.e. Hyy(ω) = Hxx(ω)*, Hyx(ω) = −Hxy(ω)*, so that
  * det H(ω) = |Hxx(ω)|² + |Hxy(ω)|² > 0 and output y is the polarization
  * orthogonal to output x: the two outputs cannot pick the same source.
+ * @example deriveOrthogonalRow(taps, 11); // y row from the x row
  */
 export function deriveOrthogonalRow(taps: Float64Array, L: number): void {
   const oYX = 4 * L;
@@ -147,6 +154,7 @@ export function deriveOrthogonalRow(taps: Float64Array, L: number): void {
  * |f| ≤ `bandFraction`·fs/2 (the stage uses 0.4, i.e. |f| ≤ 0.4·Rs at
  * 2 samples per symbol, inside the signal band for any roll-off).
  * A row of zero norm counts as singular (ρ = 0).
+ * @example rowOrthogonality(taps, 11, 17, 0.4) < 0.5 // singular
  */
 export function rowOrthogonality(taps: Float64Array, L: number, points: number, bandFraction: number): number {
   const c = (L - 1) / 2;
@@ -201,6 +209,7 @@ export function rowOrthogonality(taps: Float64Array, L: number, points: number, 
  * perfectly separated noiseless output, 0.5 for an equal mix of the two
  * polarizations, 0 for Gaussian noise; an output equalized perfectly at
  * signal-to-noise ratio s gives σ = (s/(1 + s))².
+ * @example separationIndex(1, 1.32, 1.32) // 1: a noiseless, separated 16QAM output
  */
 export function separationIndex(m2: number, m4: number, kurtosis: number): number {
   if (!(m2 > 0)) return 0;

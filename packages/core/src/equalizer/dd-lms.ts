@@ -57,7 +57,10 @@ export function ddLmsRule(
 /** Forgetting factor of the fourth-power phase average used for acquisition. */
 const ACQUIRE_FORGET = 1 - 1 / 16;
 
-/** The DD-LMS rule; see {@link ddLmsRule}. */
+/**
+ * The DD-LMS rule; see {@link ddLmsRule}.
+ * @example const rule: DdLmsRule = ddLmsRule('16qam', 3e-4); rule.loopState(0).phase;
+ */
 export class DdLmsRule implements UpdateRule {
   readonly name = 'dd-lms';
   private readonly levels: number;
@@ -134,7 +137,12 @@ export class DdLmsRule implements UpdateRule {
   }
 
   /** Loop phase θ (rad) and frequency ν (rad per symbol) of a polarization. */
-  loopState(pol: 0 | 1): { phase: number; frequency: number } {
+  loopState(pol: 0 | 1): {
+    /** Loop phase θ, rad. */
+    phase: number;
+    /** Loop frequency ν, rad per symbol. */
+    frequency: number;
+  } {
     return { phase: this.theta[pol], frequency: this.nu[pol] };
   }
 

@@ -23,9 +23,13 @@ const NAME = 'butterfly-equalizer';
 
 /** The four filters of the butterfly, L complex taps each (interleaved, 2·L numbers). */
 export interface ButterflyTaps {
+  /** x input to x output. */
   readonly xx: ComplexArray;
+  /** y input to x output. */
   readonly xy: ComplexArray;
+  /** x input to y output. */
   readonly yx: ComplexArray;
+  /** y input to y output. */
   readonly yy: ComplexArray;
 }
 
@@ -46,9 +50,13 @@ export interface EqualizerOptions {
    * dense rings need a quieter start), `ddLms` (default 3e-4).
    */
   readonly stepSize?: {
+    /** CMA step at the start of pre-convergence (default 3e-3). */
     readonly preConvergence?: number;
+    /** CMA step after pre-convergence (default 3e-4; 1e-4 for 64QAM). */
     readonly cma?: number;
+    /** RDE step (default 1e-4; 3e-5 for 64QAM). */
     readonly rde?: number;
+    /** DD-LMS step (default 3e-4). */
     readonly ddLms?: number;
   };
   /**
@@ -70,7 +78,12 @@ export interface EqualizerOptions {
    * stream ends). `passes` = 0 streams from the first sample with no
    * buffering. A capture shorter than `symbols` is used whole.
    */
-  readonly convergeOnStart?: { readonly symbols: number; readonly passes: number };
+  readonly convergeOnStart?: {
+    /** Symbols buffered and adapted over (≥ 1). */
+    readonly symbols: number;
+    /** Passes over them (0: no buffering). */
+    readonly passes: number;
+  };
   /** Tap update every n-th symbol (default 1); the error is still computed on every symbol. */
   readonly updateEvery?: number;
   /** 'centre-spike' (default: hxx = hyy = δ at the centre tap) or given taps, L complex taps each. */
@@ -80,7 +93,12 @@ export interface EqualizerOptions {
    * loop (see {@link ddLmsRule}); absent: no DD-LMS. `startSymbol` counts
    * adapted symbols and must be at least `preConvergenceSymbols`.
    */
-  readonly ddLms?: { readonly startSymbol: number; readonly phaseLoop?: PhaseLoopGains };
+  readonly ddLms?: {
+    /** Adapted symbols before DD-LMS takes over (≥ `preConvergenceSymbols`). */
+    readonly startSymbol: number;
+    /** Gains of its carrier-phase loop (default: {@link ddLmsRule}'s). */
+    readonly phaseLoop?: PhaseLoopGains;
+  };
   /**
    * Singularity handling: `orthogonalStart` (default false) derives the
    * y-filters from the x-filters during pre-convergence; `restart` (default
@@ -93,7 +111,14 @@ export interface EqualizerOptions {
    * off by default and restart on detection, which touches only the rare
    * singular case, is on.
    */
-  readonly singularity?: { readonly orthogonalStart?: boolean; readonly restart?: boolean; readonly threshold?: number };
+  readonly singularity?: {
+    /** Derive the y-filters from the x-filters during pre-convergence (default false). */
+    readonly orthogonalStart?: boolean;
+    /** Re-derive the y-filters when a check finds them singular (default true). */
+    readonly restart?: boolean;
+    /** Row orthogonality below which the taps count as singular, 0…1 (default 0.5). */
+    readonly threshold?: number;
+  };
   /**
    * Convergence verdict over the last `window` output symbols (default
    * 2048): converged when the separation index of both outputs is at least
@@ -101,7 +126,12 @@ export interface EqualizerOptions {
    * SNR of 7.1 dB, an output mixing the polarizations by more than 25° fails)
    * and the taps are not singular.
    */
-  readonly convergence?: { readonly window?: number; readonly threshold?: number };
+  readonly convergence?: {
+    /** Output symbols the verdict looks at (default 2048). */
+    readonly window?: number;
+    /** Least separation index of both outputs, 0…1 (default 0.7). */
+    readonly threshold?: number;
+  };
   /**
    * Symbols per point of the error trace at its start (default 256); the
    * trace keeps at most 2048 points and halves its resolution when full.
@@ -140,40 +170,56 @@ export interface EqualizerDiagnostics {
    * doubles whenever the trace is full (see {@link DecimatedTrace}).
    */
   readonly trace: {
+    /** Adapted symbols per point. */
     readonly every: number;
+    /** Mean cost of the x output per point (one value per `every` adapted symbols). */
     readonly costX: Float64Array;
+    /** Mean cost of the y output per point. */
     readonly costY: Float64Array;
+    /** Mean separation index of the x output per point, 0…1. */
     readonly separationX: Float64Array;
+    /** Mean separation index of the y output per point, 0…1. */
     readonly separationY: Float64Array;
   };
   /** The taps now. */
   readonly finalTaps: ButterflyTaps;
+  /** The convergence verdict (see {@link EqualizerOptions.convergence}). */
   readonly convergence: {
+    /** Both outputs separated and the taps not singular. */
     readonly converged: boolean;
     /** Separation index of each output over the last `window` output symbols. */
     readonly separationX: number;
+    /** Separation index of the y output over the same symbols. */
     readonly separationY: number;
+    /** Output symbols looked at. */
     readonly window: number;
+    /** Least separation index accepted. */
     readonly threshold: number;
+    /** The criterion in words, for reports. */
     readonly criterion: string;
   };
+  /** The singularity check on the final taps. */
   readonly singularity: {
     /** Both outputs extract the same source. */
     readonly singular: boolean;
     /** Mean in-band Hadamard ratio of the final 2×2 response (1 orthogonal rows, 0 parallel). */
     readonly rowOrthogonality: number;
+    /** Row orthogonality below which the taps count as singular. */
     readonly threshold: number;
     /** Times the y-filters were re-derived after a failed check. */
     readonly restarts: number;
+    /** The criterion in words, for reports. */
     readonly criterion: string;
   };
   /** State of the DD-LMS phase loops (null without DD-LMS or before it starts). */
   readonly carrierLoop: {
     /** Loop phase, rad, per polarization. */
     readonly phaseX: number;
+    /** Loop phase of the y polarization, rad. */
     readonly phaseY: number;
     /** Loop frequency, Hz (ν·Rs/2π), per polarization. */
     readonly frequencyHzX: number;
+    /** Loop frequency of the y polarization, Hz. */
     readonly frequencyHzY: number;
   } | null;
 }

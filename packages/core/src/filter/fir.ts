@@ -11,6 +11,7 @@ type FieldDomain = 'field' | 'twoSps' | 'symbols';
  *
  * `u` holds L − 1 samples of history followed by the new samples, so that
  * `count` = samples(u) − (L − 1). Pure: no allocation.
+ * @example firKernel(taps, delayLine, out, 256); // 256 outputs
  */
 export function firKernel(taps: ComplexArray, u: Float64Array, out: Float64Array, count: number): void {
   const L = taps.length >> 1;
@@ -31,6 +32,7 @@ export function firKernel(taps: ComplexArray, u: Float64Array, out: Float64Array
   }
 }
 
+/** Options of {@link firFilter}. */
 export interface FirFilterOptions<D extends FieldDomain> {
   /** Domain filtered (input and output), default 'field'. */
   readonly domain?: D;
@@ -46,12 +48,15 @@ export interface FirFilterOptions<D extends FieldDomain> {
  * output has exactly as many samples as the input (the stream is taken as
  * zero outside the capture).
  * @throws OptionError when the tap count is even or zero, or a tap is not finite
+ * @example const lowpass = firFilter({ taps: fromParts([0.25, 0.5, 0.25], [0, 0, 0]) }); const y = lowpass.process(block);
  */
 export function firFilter<D extends FieldDomain = 'field'>(options: FirFilterOptions<D>): Stage<D, D, FirDiagnostics> {
   return new FirFilter(options);
 }
 
+/** What {@link firFilter} reports. */
 export interface FirDiagnostics {
+  /** Taps of the filter. */
   readonly taps: number;
   /** Samples delivered so far, per polarization. */
   readonly samples: number;

@@ -2,6 +2,7 @@ import { type ChannelBlock, type FieldBlock, fieldBlock } from '../pipeline/bloc
 import { BlockError, type Stage, type StageRecord } from '../pipeline/stage.js';
 import { complexArray } from '../signal/complex.js';
 
+/** What {@link combineChannels} reports. */
 export interface CombineDiagnostics {
   /** Samples combined so far, per polarization. */
   readonly samples: number;
@@ -10,6 +11,7 @@ export interface CombineDiagnostics {
 /**
  * Joins the four real receiver channels into the complex dual-polarization
  * field at the scope rate: x = xi + j·xq, y = yi + j·yq. Stateless.
+ * @example const field = combineChannels().process({ domain: 'channels', ...sim.channels, samplesPerSymbol: 2 }); field.x.length; // 2 × samples
  */
 export function combineChannels(): Stage<'channels', 'field', CombineDiagnostics> {
   return new CombineChannels();

@@ -4,6 +4,7 @@ import { InterpolationKernel } from '../resample/interpolation-kernel.js';
 import { CHANNEL_NAMES, type ChannelName } from '../signal/dual-pol.js';
 import { checkChannels } from './normalize-channels.js';
 
+/** Options of {@link deskewChannels}. */
 export interface DeskewChannelsOptions {
   /**
    * Delay of each channel relative to the others, ps, as measured on the
@@ -15,6 +16,7 @@ export interface DeskewChannelsOptions {
   readonly attenuationDb?: number;
 }
 
+/** What {@link deskewChannels} reports. */
 export interface DeskewChannelsDiagnostics {
   /** Skew removed per channel, ps. */
   readonly skewPs: Readonly<Record<ChannelName, number>>;

@@ -3,6 +3,7 @@ import { LeadingSpan } from '../pipeline/leading-span.js';
 import { BlockError, OptionError, type Stage, type StageRecord } from '../pipeline/stage.js';
 import type { ChannelName } from '../signal/dual-pol.js';
 
+/** Options of {@link normalizeChannels}. */
 export interface NormalizeChannelsOptions {
   /**
    * Samples per channel at the start of the capture on which the mean and
@@ -25,6 +26,7 @@ export interface NormalizeChannelsOptions {
 /** Per-channel values. */
 export type ChannelValues<T> = Readonly<Record<ChannelName, T>>;
 
+/** What {@link normalizeChannels} reports. */
 export interface NormalizeChannelsDiagnostics {
   /** Mean of each channel on the calibration span, capture units (removed when `removeDc`). */
   readonly mean: ChannelValues<number>;

@@ -6,6 +6,7 @@ import { checkChannels } from './normalize-channels.js';
 /** 'gsop': Gram–Schmidt, I kept as the reference axis; 'lowdin': symmetric, both axes move by half the error. */
 export type OrthogonalizationMethod = 'gsop' | 'lowdin';
 
+/** Options of {@link orthogonalizeIq}. */
 export interface OrthogonalizeIqOptions {
   /** Default 'gsop'. */
   readonly method?: OrthogonalizationMethod;
@@ -27,10 +28,13 @@ export interface IqImbalanceEstimate {
   readonly matrix: readonly [number, number, number, number];
 }
 
+/** What {@link orthogonalizeIq} estimated. */
 export interface OrthogonalizeIqDiagnostics {
+  /** The method used. */
   readonly method: OrthogonalizationMethod;
   /** Null until the calibration span has been seen. */
   readonly x: IqImbalanceEstimate | null;
+  /** The y polarization's imbalance; null until the calibration span has been seen. */
   readonly y: IqImbalanceEstimate | null;
 }
 
@@ -67,6 +71,7 @@ export function orthogonalizeIq(options: OrthogonalizeIqOptions = {}): Stage<'ch
  * The correction matrix [a, b, c, d] (I' = a·I + b·Q, Q' = c·I + d·Q) from
  * the second moments P_I, P_Q, C of one polarization. Pure.
  * @throws RangeError when the moments are not those of two independent axes (P ≤ 0 or |ρ| ≥ 1)
+ * @example const [a, b, c, d] = orthogonalizationMatrix('gsop', 1, 1, 0.1); // I' = a·I + b·Q, Q' = c·I + d·Q
  */
 export function orthogonalizationMatrix(
   method: OrthogonalizationMethod,

@@ -3,6 +3,7 @@ import { type ComplexArray, complexArray } from '../signal/complex.js';
 /** Modulation formats the library handles. */
 export type ModulationName = 'qpsk' | '16qam' | '64qam';
 
+/** Every modulation the library knows, in order of size. */
 export const MODULATIONS: readonly ModulationName[] = ['qpsk', '16qam', '64qam'];
 
 /**
@@ -16,6 +17,7 @@ export const MODULATIONS: readonly ModulationName[] = ['qpsk', '16qam', '64qam']
  * neighbouring levels differ in exactly one bit.
  */
 export interface Constellation {
+  /** Which modulation. */
   readonly name: ModulationName;
   /** Number of points M. */
   readonly order: number;
@@ -55,6 +57,7 @@ export function constellation(name: ModulationName): Constellation {
 /**
  * Parses a modulation name (case-insensitive).
  * @throws RangeError for an unknown name
+ * @example parseModulation('16QAM') // '16qam'
  */
 export function parseModulation(text: string): ModulationName {
   const t = text.toLowerCase();
@@ -115,6 +118,7 @@ function indexToGray(i: number): number {
  * @param symbols N complex symbols
  * @param out N labels (reused when given)
  * @returns `out`
+ * @example const labels = decide(constellation('16qam'), symbols); // one label 0…15 per symbol
  */
 export function decide(c: Constellation, symbols: ComplexArray, out?: Uint8Array): Uint8Array {
   const n = symbols.length >> 1;
@@ -146,6 +150,7 @@ function failNaN(k: number): never {
  * @param bits N·log2 M bits, each 0 or 1
  * @returns N complex symbols
  * @throws RangeError when the bit count is not a multiple of log2 M
+ * @example const symbols = mapBits(constellation('qpsk'), new Uint8Array([0, 0, 1, 1])); // 2 symbols
  */
 export function mapBits(c: Constellation, bits: Uint8Array, out?: ComplexArray): ComplexArray {
   const k = c.bitsPerSymbol;
@@ -163,7 +168,10 @@ export function mapBits(c: Constellation, bits: Uint8Array, out?: ComplexArray):
   return symbols;
 }
 
-/** Symbols for the given labels. */
+/**
+ * Symbols for the given labels.
+ * @example labelsToSymbols(constellation('qpsk'), new Uint8Array([0, 3])) // two points, unit average power
+ */
 export function labelsToSymbols(c: Constellation, labels: Uint8Array, out?: ComplexArray): ComplexArray {
   const symbols = out ?? complexArray(labels.length);
   for (let s = 0; s < labels.length; s++) {
@@ -173,7 +181,10 @@ export function labelsToSymbols(c: Constellation, labels: Uint8Array, out?: Comp
   return symbols;
 }
 
-/** Expands labels to bits (MSB first), log2 M bits per label. */
+/**
+ * Expands labels to bits (MSB first), log2 M bits per label.
+ * @example labelsToBits(constellation('qpsk'), new Uint8Array([2])) // [1, 0]
+ */
 export function labelsToBits(c: Constellation, labels: Uint8Array, out?: Uint8Array): Uint8Array {
   const k = c.bitsPerSymbol;
   const bits = out ?? new Uint8Array(labels.length * k);
@@ -184,7 +195,10 @@ export function labelsToBits(c: Constellation, labels: Uint8Array, out?: Uint8Ar
   return bits;
 }
 
-/** Demaps symbols to bits by hard decision. */
+/**
+ * Demaps symbols to bits by hard decision.
+ * @example const bits = demapBits(constellation('16qam'), symbols); // 4 bits per symbol
+ */
 export function demapBits(c: Constellation, symbols: ComplexArray): Uint8Array {
   return labelsToBits(c, decide(c, symbols));
 }

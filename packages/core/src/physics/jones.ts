@@ -7,7 +7,10 @@ import type { Rng } from '../random/rng.js';
  */
 export type JonesMatrix = Float64Array;
 
-/** The identity Jones matrix. */
+/**
+ * The identity Jones matrix.
+ * @example multiplyJones(identityJones(), m) // m
+ */
 export function identityJones(): JonesMatrix {
   return Float64Array.of(1, 0, 0, 0, 0, 0, 1, 0);
 }
@@ -16,6 +19,7 @@ export function identityJones(): JonesMatrix {
  * A random unitary 2×2 matrix drawn from the Haar measure on U(2): a uniform
  * global phase times [[a, b], [−b*, a*]] with (a, b) uniform on the unit
  * 3-sphere (|a|² is then uniform on [0, 1]).
+ * @example const sop = randomUnitary(new Rng(7)); unitarityError(sop) < 1e-12;
  */
 export function randomUnitary(rng: Rng): JonesMatrix {
   const c = Math.sqrt(rng.uniform());
@@ -39,7 +43,10 @@ export function randomUnitary(rng: Rng): JonesMatrix {
   return m;
 }
 
-/** Matrix product a·b. */
+/**
+ * Matrix product a·b.
+ * @example const m = multiplyJones(sop, psp); // sop · psp
+ */
 export function multiplyJones(a: JonesMatrix, b: JonesMatrix): JonesMatrix {
   const out = new Float64Array(8);
   for (let r = 0; r < 2; r++) {
@@ -61,7 +68,10 @@ export function multiplyJones(a: JonesMatrix, b: JonesMatrix): JonesMatrix {
   return out;
 }
 
-/** Largest |(M·Mᴴ − I)ᵢⱼ|: zero for a unitary matrix. */
+/**
+ * Largest |(M·Mᴴ − I)ᵢⱼ|: zero for a unitary matrix.
+ * @example unitarityError(identityJones()) // 0
+ */
 export function unitarityError(m: JonesMatrix): number {
   const h = Float64Array.of(m[0], -m[1], m[4], -m[5], m[2], -m[3], m[6], -m[7]);
   const p = multiplyJones(m, h);

@@ -8,6 +8,7 @@ export const SPEED_OF_LIGHT = 299_792_458;
 /** The 0.1 nm OSNR reference bandwidth at 1550 nm, Hz (12.5 GHz, common practice). */
 export const OSNR_REFERENCE_BANDWIDTH_HZ = 12.5e9;
 
+/** What the OSNR ↔ SNR conversions need to know about the signal. */
 export interface OsnrOptions {
   /** Symbol rate, Bd. */
   readonly symbolRate: number;
@@ -22,12 +23,16 @@ export interface OsnrOptions {
  * OSNR = (p·Rs / (2·Bref))·SNR (Essiambre et al., "Capacity limits of optical
  * fiber networks", JLT 28(4), 2010). At 32 GBd dual polarization,
  * SNR = OSNR − 4.08 dB.
+ * @example osnrToSnrDb(20, { symbolRate: 32e9 }) // Es/N0 per polarization, dB
  */
 export function osnrToSnrDb(osnrDb: number, options: OsnrOptions): number {
   return osnrDb - 10 * Math.log10(osnrFactor(options));
 }
 
-/** OSNR (dB) in the reference bandwidth for an Es/N0 per polarization (dB). */
+/**
+ * OSNR (dB) in the reference bandwidth for an Es/N0 per polarization (dB).
+ * @example snrToOsnrDb(osnrToSnrDb(20, { symbolRate: 32e9 }), { symbolRate: 32e9 }) // 20
+ */
 export function snrToOsnrDb(snrDb: number, options: OsnrOptions): number {
   return snrDb + 10 * Math.log10(osnrFactor(options));
 }
@@ -51,18 +56,25 @@ function osnrFactor({ symbolRate, polarizations = 2, referenceBandwidthHz = OSNR
  * (17 ps/(nm·km) × 80 km = 1,360 ps/nm), `wavelengthM` the carrier wavelength.
  * Convention of this library: the simulator's fibre multiplies by exp(jφ);
  * dispersion compensation multiplies by exp(−jφ).
+ * @example dispersionPhase(10e9, 1360) // rad at +10 GHz after 80 km of standard fibre
  */
 export function dispersionPhase(f: number, dispersionPsPerNm: number, wavelengthM = 1550e-9): number {
   const dz = dispersionPsPerNm * 1e-3; // ps/nm → s/m
   return (-Math.PI * wavelengthM * wavelengthM * dz * f * f) / SPEED_OF_LIGHT;
 }
 
-/** Decibels to a power ratio. */
+/**
+ * Decibels to a power ratio.
+ * @example dbToLinear(3) // ≈ 1.995
+ */
 export function dbToLinear(db: number): number {
   return 10 ** (db / 10);
 }
 
-/** A power ratio in decibels. */
+/**
+ * A power ratio in decibels.
+ * @example linearToDb(100) // 20
+ */
 export function linearToDb(ratio: number): number {
   return 10 * Math.log10(ratio);
 }

@@ -11,9 +11,13 @@ import { type ComplexArray, complexArray, concatComplex, sliceComplex } from '..
  * Later code may add domains by merging into {@link DomainBlocks}.
  */
 export interface DomainBlocks {
+  /** The scope's four real channels xi, xq, yi, yq at the capture's rate. */
   channels: ChannelBlock;
+  /** Complex x and y fields at the capture's rate. */
   field: FieldBlock<'field'>;
+  /** Complex fields at 2 samples per symbol. */
   twoSps: FieldBlock<'twoSps'>;
+  /** One complex value per symbol and polarization. */
   symbols: FieldBlock<'symbols'>;
 }
 
@@ -25,10 +29,15 @@ export type BlockOf<D extends Domain> = DomainBlocks[D];
 
 /** Real four-channel block. All arrays have the same length. */
 export interface ChannelBlock {
+  /** Always 'channels'. */
   readonly domain: 'channels';
+  /** In-phase channel of x, capture units, one value per sample. */
   readonly xi: Float64Array;
+  /** Quadrature channel of x. */
   readonly xq: Float64Array;
+  /** In-phase channel of y. */
   readonly yi: Float64Array;
+  /** Quadrature channel of y. */
   readonly yq: Float64Array;
   /** Sa/s. */
   readonly sampleRate: number;
@@ -38,23 +47,33 @@ export interface ChannelBlock {
 
 /** Complex dual-polarization block; `x` and `y` have the same length. */
 export interface FieldBlock<D extends 'field' | 'twoSps' | 'symbols' = 'field' | 'twoSps' | 'symbols'> {
+  /** The domain this block belongs to. */
   readonly domain: D;
+  /** x polarization, interleaved complex (2 numbers per sample). */
   readonly x: ComplexArray;
+  /** y polarization, the same length as `x`. */
   readonly y: ComplexArray;
   /** Sa/s. */
   readonly sampleRate: number;
+  /** Samples per symbol (1 for symbols, 2 for twoSps, the capture's for field). */
   readonly samplesPerSymbol: number;
 }
 
 /** Any block. */
 export type AnyBlock = BlockOf<Domain>;
 
-/** Number of samples (per channel or per polarization) in a block. */
+/**
+ * Number of samples (per channel or per polarization) in a block.
+ * @example blockLength({ domain: 'channels', ...sim.channels, samplesPerSymbol: 2 }) // samples per channel
+ */
 export function blockLength(block: AnyBlock): number {
   return block.domain === 'channels' ? block.xi.length : block.x.length >> 1;
 }
 
-/** A new block of the same domain and timing with other data (copied by reference). */
+/**
+ * A new block of the same domain and timing with other data (copied by reference).
+ * @example const b = fieldBlock('symbols', x, y, 32e9, 1);
+ */
 export function fieldBlock<D extends 'field' | 'twoSps' | 'symbols'>(
   domain: D,
   x: ComplexArray,
@@ -68,7 +87,10 @@ export function fieldBlock<D extends 'field' | 'twoSps' | 'symbols'>(
   return { domain, x, y, sampleRate, samplesPerSymbol };
 }
 
-/** An empty block of a domain with the given timing. */
+/**
+ * An empty block of a domain with the given timing.
+ * @example emptyBlock('twoSps', 64e9, 2) // zero samples, for a stage with nothing to emit yet
+ */
 export function emptyBlock<D extends Domain>(domain: D, sampleRate: number, samplesPerSymbol: number): BlockOf<D> {
   if (domain === 'channels') {
     const z = new Float64Array(0);
@@ -77,7 +99,10 @@ export function emptyBlock<D extends Domain>(domain: D, sampleRate: number, samp
   return fieldBlock(domain as 'field', complexArray(0), complexArray(0), sampleRate, samplesPerSymbol) as BlockOf<D>;
 }
 
-/** Samples `[start, end)` of a block, copied. */
+/**
+ * Samples `[start, end)` of a block, copied.
+ * @example const first = sliceBlock(block, 0, 4096); // samples 0…4095
+ */
 export function sliceBlock<B extends AnyBlock>(block: B, start: number, end: number): B {
   if (block.domain === 'channels') {
     return {
@@ -94,6 +119,7 @@ export function sliceBlock<B extends AnyBlock>(block: B, start: number, end: num
 /**
  * Concatenates blocks of one domain; their timing is taken from the first.
  * @throws RangeError when given no block or blocks of several domains
+ * @example const whole = concatBlocks([stage.process(a), stage.process(b), stage.flush() ?? emptyBlock('symbols', 32e9, 1)]);
  */
 export function concatBlocks<B extends AnyBlock>(blocks: readonly B[]): B {
   if (blocks.length === 0) throw new RangeError('concatBlocks: expected at least one block');

@@ -32,7 +32,9 @@ export class DecimatedTrace {
   private every: number;
 
   constructor(
+    /** Number of series traced side by side (≥ 1). */
     readonly seriesCount: number,
+    /** Most points kept per series (even, ≥ 2). */
     readonly capacity: number,
     private readonly initialEvery = 1,
   ) {

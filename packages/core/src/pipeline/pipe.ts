@@ -7,6 +7,7 @@ import { type AnyStage, BlockError, type Stage, type StageRecord } from './stage
  */
 export interface Pipeline<In extends Domain, Out extends Domain, Diagnostics extends readonly unknown[]>
   extends Stage<In, Out, Diagnostics> {
+  /** The stages, in order. */
   readonly stages: readonly AnyStage[];
 }
 

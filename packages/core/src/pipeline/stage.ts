@@ -5,7 +5,9 @@ export type JsonValue = null | boolean | number | string | readonly JsonValue[] 
 
 /** What a stage is and how it was configured: enough to build it again. */
 export interface StageRecord {
+  /** Stage name. */
   readonly stage: string;
+  /** Every option, defaults filled in. */
   readonly options: { readonly [key: string]: JsonValue };
   /** For a pipeline, the records of its stages in order. */
   readonly stages?: readonly StageRecord[];
@@ -33,10 +35,19 @@ export interface Stage<In extends Domain, Out extends Domain, Diagnostics = unkn
   readonly input: In;
   /** Domain produced. */
   readonly output: Out;
+  /**
+   * Takes the next block of the stream (any length, zero included) and
+   * returns what can be emitted so far.
+   * @throws BlockError when the block's domain, rate or lengths do not fit the stage
+   */
   process(block: BlockOf<In>): BlockOf<Out>;
+  /** Ends the stream: returns what was held back, or null when nothing was. */
   flush(): BlockOf<Out> | null;
+  /** Returns to the freshly created state. */
   reset(): void;
+  /** What the stage learned so far (a typed record; a stage never prints). */
   diagnostics(): Diagnostics;
+  /** The stage's name and options, enough to build it again. */
   describe(): StageRecord;
 }
 
@@ -54,13 +65,19 @@ export type DiagnosticsOf<S> = S extends Stage<Domain, Domain, infer D> ? D : ne
 /**
  * Thrown when a stage's options are out of range or inconsistent: names the
  * stage, the option, what was expected and what was received.
+ * @example throw new OptionError('my-stage', 'halfWindow', 'an integer ≥ 1', 0); // "my-stage: option 'halfWindow' expected an integer ≥ 1, received 0"
  */
 export class OptionError extends RangeError {
+  /** Always 'OptionError'. */
   override readonly name = 'OptionError';
   constructor(
+    /** The stage (or function) whose option is wrong. */
     readonly stage: string,
+    /** The option's name. */
     readonly option: string,
+    /** What was expected, in words. */
     readonly expected: string,
+    /** The value given. */
     readonly received: unknown,
   ) {
     super(`${stage}: option '${option}' expected ${expected}, received ${formatValue(received)}`);
@@ -79,7 +96,9 @@ function formatValue(v: unknown): string {
 /**
  * Thrown when a block does not fit a stage (wrong domain, length mismatch,
  * timing change mid-stream).
+ * @example throw new BlockError(`${this.name}: expected a 'symbols' block, received '${block.domain}'`);
  */
 export class BlockError extends RangeError {
+  /** Always 'BlockError'. */
   override readonly name = 'BlockError';
 }

@@ -10,7 +10,9 @@
 
 export type PrbsOrder = 7 | 9 | 11 | 15 | 20 | 23 | 29 | 31;
 
+/** A PRBS generator polynomial xⁿ + xᵏ + 1 (ITU-T O.150). */
 export interface PrbsPattern {
+  /** Degree n: the sequence repeats every 2ⁿ − 1 bits. */
   readonly order: PrbsOrder;
   /** The second feedback stage k of xⁿ + xᵏ + 1. */
   readonly tap: number;
@@ -38,6 +40,7 @@ export const PRBS_PATTERNS: Readonly<Record<PrbsOrder, PrbsPattern>> = {
  * @example new Prbs(15).fill(new Uint8Array(32767)) // one period
  */
 export class Prbs {
+  /** The polynomial this generator runs. */
   readonly pattern: PrbsPattern;
   private state: number;
   private readonly initial: number;

@@ -3,6 +3,7 @@
  * linear pseudorandom number generators", ACM TOMS 2021), seeded through
  * SplitMix32. Same seed, same stream, on every platform: it uses only 32-bit
  * integer arithmetic.
+ * @example const rng = new Rng(42); rng.gaussian(); rng.fillBits(new Uint8Array(64)); // same seed, same draws
  */
 export class Rng {
   private s0 = 0;

@@ -54,6 +54,7 @@ export interface ReceiverStages {
 
 /** What the default chain needs to know about a capture, and its options. */
 export interface ReceiverSettings {
+  /** The transmitted modulation. */
   readonly modulation: ModulationName;
   /** Symbol rate, Bd. */
   readonly symbolRate: number;
@@ -77,14 +78,25 @@ export interface ReceiverSettings {
   readonly skewPs?: Partial<Readonly<Record<ChannelName, number>>>;
   /** Options passed to the stages the chain builds. */
   readonly options?: {
+    /** Options of the `normalize` slot ({@link normalizeChannels}). */
     readonly normalize?: NormalizeChannelsOptions;
+    /** Options of the `orthogonalize` slot ({@link orthogonalizeIq}). */
     readonly orthogonalize?: OrthogonalizeIqOptions;
+    /** Options of the `coarseFrequency` slot ({@link coarseFrequencyShift}). */
     readonly coarseFrequency?: Omit<CoarseFrequencyOptions<'twoSps'>, 'domain'>;
+    /** Options of the `timing` slot ({@link gardnerClockRecovery}). */
     readonly timing?: GardnerOptions;
+    /** Options of the `equalizer` slot ({@link butterflyEqualizer}), over the chain's own. */
     readonly equalizer?: Partial<EqualizerOptions>;
+    /** Options of the `frequency` slot ({@link frequencyOffsetRecovery}). */
     readonly frequency?: FrequencyOffsetOptions;
     /** Half window N and (for blind phase search) test phases B. */
-    readonly phase?: { readonly halfWindow?: number; readonly testPhases?: number };
+    readonly phase?: {
+      /** Half window N, symbols: the phase is averaged over 2N + 1 symbols. */
+      readonly halfWindow?: number;
+      /** Test phases B of blind phase search. */
+      readonly testPhases?: number;
+    };
   };
   /** Stages that replace the chain's own, by slot. */
   readonly replace?: Partial<ReceiverStages>;
@@ -103,14 +115,21 @@ export interface ReceiverChain extends Stage<'channels', 'symbols', ReceiverDiag
 
 /** Settings with every default made explicit (recorded for reproducibility). */
 export interface ResolvedReceiverSettings {
+  /** The transmitted modulation. */
   readonly modulation: ModulationName;
+  /** Symbol rate, Bd. */
   readonly symbolRate: number;
+  /** Capture sample rate, Sa/s. */
   readonly sampleRate: number;
+  /** Transmitter root-raised-cosine roll-off. */
   readonly rollOff: number;
   /** Given dispersion, or null when estimated blindly or not removed. */
   readonly dispersionPsPerNm: number | null;
+  /** Whether the dispersion is estimated blindly. */
   readonly estimateDispersion: boolean;
+  /** Differential group delay the equalizer is sized for, ps. */
   readonly expectedDgdPs: number;
+  /** Taps per filter of the 2×2 equalizer (odd). */
   readonly equalizerTaps: number;
   /** 'viterbi-viterbi' for QPSK, 'blind-phase-search' for QAM (unless replaced). */
   readonly phaseRecovery: 'viterbi-viterbi' | 'blind-phase-search';

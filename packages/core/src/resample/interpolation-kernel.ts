@@ -32,16 +32,20 @@ const DESIGN_MARGIN_DB = 3;
  * are approximate. Each table row is scaled to unit
  * sum (unit gain at DC). Between rows the coefficients are interpolated
  * linearly; with 1024 rows that error is below −110 dB for f_c ≤ 0.5.
+ * @example const k = new InterpolationKernel({ passband: 0.4, stopband: 0.6, attenuationDb: 70 }); const row = new Float64Array(k.taps); k.coefficients(0.25, row);
  */
 export class InterpolationKernel {
   /** H: taps on each side; the kernel has 2H taps. */
   readonly halfTaps: number;
+  /** 2H: taps of the kernel. */
   readonly taps: number;
   /** Rows per input sample. */
   readonly phases: number;
   /** Cutoff f_c, cycles per input sample. */
   readonly cutoff: number;
+  /** Kaiser window β. */
   readonly beta: number;
+  /** The lowpass specification, defaults filled in. */
   readonly spec: Required<LowpassSpec>;
   /** (phases + 1) rows of 2H coefficients. */
   private readonly table: Float64Array;

@@ -19,6 +19,7 @@ import { type ResampleDiagnostics, type ResampleOptions, resampleToTwoSps } from
  * to the truncation), so that a transmitter RRC pulse and these taps make a
  * raised cosine with unit value at the symbol instant.
  * @throws RangeError for a roll-off outside (0, 1], an integer sps below 2 or a span below 1
+ * @example const taps = rrcTaps(0.1, 2, 32); // 65 complex taps at 2 samples per symbol
  */
 export function rrcTaps(rollOff: number, samplesPerSymbol: number, spanSymbols: number): ComplexArray {
   if (!(rollOff > 0 && rollOff <= 1)) throw new RangeError(`rrcTaps: expected a roll-off in (0, 1], received ${rollOff}`);
@@ -46,6 +47,7 @@ export function rrcTaps(rollOff: number, samplesPerSymbol: number, spanSymbols: 
   return taps;
 }
 
+/** Options of the root-raised-cosine matched filter ({@link rrcMatchedFilter}). */
 export interface MatchedFilterOptions {
   /** Transmitter roll-off β in (0, 1] (default 0.1). */
   readonly rollOff?: number;
@@ -57,10 +59,13 @@ export interface MatchedFilterOptions {
   readonly spanSymbols?: number;
 }
 
+/** What the matched filter reports. */
 export interface MatchedFilterDiagnostics {
+  /** Taps of the root-raised-cosine filter. */
   readonly taps: number;
   /** FFT size of the overlap-save engine. */
   readonly fftSize: number;
+  /** Samples delivered so far, per polarization. */
   readonly samples: number;
 }
 

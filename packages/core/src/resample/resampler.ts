@@ -18,10 +18,12 @@ import { dotComplex, InterpolationKernel } from './interpolation-kernel.js';
  * the output ends at the last output instant before the end of the input
  * (⌈N_in/r⌉ samples). Since t_m is computed from m alone, the phase carries
  * across blocks exactly.
+ * @example const r = new Resampler(80e9, 64e9); const out = r.process(block.x, block.y); const tail = r.flush();
  */
 export class Resampler {
   /** Input samples per output sample. */
   readonly ratio: number;
+  /** The polyphase interpolation kernel. */
   readonly kernel: InterpolationKernel;
   private readonly H: number;
   private bufX: Float64Array;
@@ -65,13 +67,26 @@ export class Resampler {
   }
 
   /** Resamples the next input samples; returns every output sample that they complete. */
-  process(x: ComplexArray, y: ComplexArray): { x: ComplexArray; y: ComplexArray } {
+  process(
+    x: ComplexArray,
+    y: ComplexArray,
+  ): {
+    /** Resampled x, interleaved complex. */
+    x: ComplexArray;
+    /** Resampled y, the same length. */
+    y: ComplexArray;
+  } {
     this.append(x, y);
     return this.emit(false);
   }
 
   /** Ends the stream: the remaining outputs, with zeros after the last input. */
-  flush(): { x: ComplexArray; y: ComplexArray } {
+  flush(): {
+    /** The last resampled x samples. */
+    x: ComplexArray;
+    /** The last resampled y samples. */
+    y: ComplexArray;
+  } {
     return this.emit(true);
   }
 
@@ -134,6 +149,7 @@ export class Resampler {
   }
 }
 
+/** Options of {@link resampleToTwoSps}. */
 export interface ResampleOptions {
   /** Symbol rate, Bd (default: the block's sampleRate / samplesPerSymbol). */
   readonly symbolRate?: number;
@@ -141,9 +157,11 @@ export interface ResampleOptions {
   readonly attenuationDb?: number;
 }
 
+/** What {@link resampleToTwoSps} reports. */
 export interface ResampleDiagnostics {
   /** Input Sa/s, output Sa/s (NaN before the first block). */
   readonly inputRate: number;
+  /** Output rate, Sa/s (2 × the symbol rate). */
   readonly outputRate: number;
   /** Taps of the interpolation kernel. */
   readonly taps: number;

@@ -10,7 +10,10 @@
 declare const complexBrand: unique symbol;
 
 /** Interleaved complex samples; `length` is twice the number of samples. */
-export type ComplexArray = Float64Array & { readonly [complexBrand]: true };
+export type ComplexArray = Float64Array & {
+  /** Compile-time brand only: marks the array as interleaved complex. */
+  readonly [complexBrand]: true;
+};
 
 /**
  * Allocates `samples` complex zeros.
@@ -28,6 +31,7 @@ export function complexArray(samples: number): ComplexArray {
 /**
  * Views an interleaved `Float64Array` as complex samples (no copy).
  * @throws RangeError when the length is odd
+ * @example const z = asComplex(new Float64Array([1, 0, 0, 1])); // 1 and j
  */
 export function asComplex(data: Float64Array): ComplexArray {
   if (data.length % 2 !== 0) {
@@ -36,7 +40,10 @@ export function asComplex(data: Float64Array): ComplexArray {
   return data as ComplexArray;
 }
 
-/** Number of complex samples in `a`. */
+/**
+ * Number of complex samples in `a`.
+ * @example sampleCount(complexArray(10)) // 10
+ */
 export function sampleCount(a: ComplexArray): number {
   return a.length >> 1;
 }
@@ -44,6 +51,7 @@ export function sampleCount(a: ComplexArray): number {
 /**
  * Builds complex samples from separate real and imaginary parts.
  * @throws RangeError when the parts differ in length
+ * @example fromParts([1, 2], [0, -1]) // [1, 0, 2, −1]: 1 and 2 − j
  */
 export function fromParts(re: ArrayLike<number>, im: ArrayLike<number>): ComplexArray {
   if (re.length !== im.length) {
@@ -57,12 +65,18 @@ export function fromParts(re: ArrayLike<number>, im: ArrayLike<number>): Complex
   return out;
 }
 
-/** Copies samples `[start, end)` (in complex samples) into a new array. */
+/**
+ * Copies samples `[start, end)` (in complex samples) into a new array.
+ * @example sliceComplex(z, 2, 5) // samples 2, 3 and 4
+ */
 export function sliceComplex(a: ComplexArray, start: number, end: number): ComplexArray {
   return a.slice(2 * start, 2 * end) as ComplexArray;
 }
 
-/** Concatenates complex arrays into one new array. */
+/**
+ * Concatenates complex arrays into one new array.
+ * @example concatComplex([a, b]) // a's samples, then b's
+ */
 export function concatComplex(parts: readonly ComplexArray[]): ComplexArray {
   let total = 0;
   for (const p of parts) total += p.length;
@@ -75,14 +89,20 @@ export function concatComplex(parts: readonly ComplexArray[]): ComplexArray {
   return out;
 }
 
-/** Mean power E|z|² of the samples (NaN for an empty array). */
+/**
+ * Mean power E|z|² of the samples (NaN for an empty array).
+ * @example meanPower(fromParts([1, 0], [0, 1])) // 1
+ */
 export function meanPower(a: ComplexArray): number {
   let sum = 0;
   for (let i = 0; i < a.length; i++) sum += a[i] * a[i];
   return sum / (a.length >> 1);
 }
 
-/** Multiplies every sample by the real factor `g`, in place. Returns `a`. */
+/**
+ * Multiplies every sample by the real factor `g`, in place. Returns `a`.
+ * @example scaleInPlace(z, 1 / Math.sqrt(meanPower(z))); // unit power
+ */
 export function scaleInPlace(a: ComplexArray, g: number): ComplexArray {
   for (let i = 0; i < a.length; i++) a[i] *= g;
   return a;

@@ -17,6 +17,7 @@ import { type ComplexArray, complexArray } from '../signal/complex.js';
  * @param outputSps 1 (default) or 2 output samples per symbol
  * @returns P·`symbols` complex samples
  * @throws RangeError when the field holds fewer samples than the output
+ * @example const sym = idealMatchedFilter(sim.field.x, 4096, 32e9, 0.1); // one sample per symbol
  */
 export function idealMatchedFilter(
   field: ComplexArray,

@@ -3,11 +3,23 @@ import type { PrbsOrder } from '../prbs/prbs.js';
 import type { ChannelName } from '../signal/dual-pol.js';
 
 /** Where the transmitted bits come from. */
-export type BitSource = { readonly kind: 'random' } | { readonly kind: 'prbs'; readonly order: PrbsOrder };
+export type BitSource =
+  | {
+      /** Seeded random bits. */
+      readonly kind: 'random';
+    }
+  | {
+      /** An ITU-T O.150 PRBS: x takes its first bits, y continues the same sequence. */
+      readonly kind: 'prbs';
+      /** Its degree n. */
+      readonly order: PrbsOrder;
+    };
 
 /** Per-polarization values. */
 export interface PerPol<T> {
+  /** For the x polarization. */
   readonly x?: T;
+  /** For the y polarization. */
   readonly y?: T;
 }
 
@@ -57,7 +69,12 @@ export interface ReceiverOptions {
    * that the rms of the four channels is `loading` × full scale (default
    * 0.25). Samples beyond full scale clip. Omit for unquantized output.
    */
-  readonly adc?: { readonly bits: number; readonly loading?: number };
+  readonly adc?: {
+    /** Resolution, bits. */
+    readonly bits: number;
+    /** rms of the channels as a fraction of full scale (default 0.25). */
+    readonly loading?: number;
+  };
   /**
    * Scope sampling-clock offset, ppm (default 0): the capture holds
    * N·sps·(1 + ppm·1e-6) samples for N symbols while its nominal sample rate
@@ -70,6 +87,7 @@ export interface ReceiverOptions {
 export interface SimulationOptions {
   /** Seed of every random draw: same seed, same capture. */
   readonly seed: number;
+  /** The transmitted modulation. */
   readonly modulation: ModulationName;
   /** Symbols per polarization (≥ 16). */
   readonly symbols: number;
@@ -81,6 +99,8 @@ export interface SimulationOptions {
   readonly rollOff?: number;
   /** Bit source (default random). */
   readonly source?: BitSource;
+  /** The optical link (default: noiseless, no impairment). */
   readonly channel?: ChannelOptions;
+  /** The receiver front end and the scope (default: ideal). */
   readonly receiver?: ReceiverOptions;
 }

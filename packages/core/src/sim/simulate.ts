@@ -24,6 +24,7 @@ export interface SimulationTruth {
   readonly clockOffsetPpm: number;
   /** Jones matrices: field out = sop · DGD(f) · psp · field in. */
   readonly psp: JonesMatrix;
+  /** The SOP rotation after the DGD. */
   readonly sop: JonesMatrix;
   /** Carrier phase (frequency offset + phase noise) at each symbol instant, rad, N values. */
   readonly carrierPhase: Float64Array;
@@ -37,15 +38,24 @@ export interface SimulationTruth {
 export interface SimulatedCapture {
   /** The four real channels at the nominal scope rate sps·Rs. */
   readonly channels: ScopeChannels;
+  /** Symbol rate, Bd. */
   readonly symbolRate: number;
   /** Nominal samples per symbol (the descriptor's sampleRate / symbolRate). */
   readonly samplesPerSymbol: number;
+  /** The transmitted modulation. */
   readonly modulation: SimulationOptions['modulation'];
+  /** Transmitter root-raised-cosine roll-off. */
   readonly rollOff: number;
   /** Transmitted symbols per polarization, N each, unit average power. */
   readonly reference: DualPol;
   /** Transmitted bits per polarization, N·log2 M each. */
-  readonly bits: { readonly x: Uint8Array; readonly y: Uint8Array };
+  readonly bits: {
+    /** Bits of x, one 0/1 per byte. */
+    readonly x: Uint8Array;
+    /** Bits of y. */
+    readonly y: Uint8Array;
+  };
+  /** What the simulator drew: the impairments a receiver must find. */
   readonly truth: SimulationTruth;
 }
 

@@ -2,6 +2,7 @@ import { type AnyBlock, type BlockOf, blockLength, concatBlocks, type Domain, sl
 import type { Stage } from '../pipeline/stage.js';
 import { Rng } from '../random/rng.js';
 
+/** Options of {@link checkBlockInvariance}. */
 export interface BlockInvarianceOptions {
   /** Random splittings tried (default 5). */
   readonly trials?: number;
@@ -13,7 +14,9 @@ export interface BlockInvarianceOptions {
   readonly tolerance?: number;
 }
 
+/** The verdict of {@link checkBlockInvariance}. */
 export interface BlockInvarianceResult {
+  /** True when every splitting gave the same output and `reset` restored the fresh state. */
   readonly ok: boolean;
   /** What differed, for the failure message. */
   readonly message: string;
@@ -28,6 +31,7 @@ export interface BlockInvarianceResult {
  * block, then `trials` random splittings, and compares the concatenated
  * outputs sample by sample. A splitting is also tried after `reset()` on a
  * used stage, so that reset restores the initial state.
+ * @example expect(checkBlockInvariance(() => viterbiViterbi({ modulation: 'qpsk' }), symbolsBlock).ok).toBe(true);
  */
 export function checkBlockInvariance<In extends Domain, Out extends Domain>(
   make: () => Stage<In, Out, unknown>,

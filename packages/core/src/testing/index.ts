@@ -1,5 +1,5 @@
 /**
  * Test support shared by every package: the block-size property check.
- * @packageDocumentation
+ * @module @intradyne/core/testing
  */
 export { type BlockInvarianceOptions, type BlockInvarianceResult, checkBlockInvariance } from './block-invariance.js';

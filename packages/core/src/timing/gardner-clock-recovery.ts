@@ -4,6 +4,7 @@ import { dotComplex, InterpolationKernel } from '../resample/interpolation-kerne
 import { type ComplexArray, complexArray } from '../signal/complex.js';
 import { squareTimingEstimate } from './square-timing.js';
 
+/** Options of {@link gardnerClockRecovery}. */
 export interface GardnerOptions {
   /** Transmitter roll-off β in (0, 1] (default 0.1): sets the detector gain. */
   readonly rollOff?: number;
@@ -25,6 +26,7 @@ export interface GardnerOptions {
   readonly acquisitionSamples?: number;
 }
 
+/** What {@link gardnerClockRecovery} reports. */
 export interface GardnerDiagnostics {
   /**
    * Estimated scope clock offset, ppm (input samples per symbol = 2·(1 + ppm·1e-6)):
@@ -81,6 +83,7 @@ export function gardnerClockRecovery(options: GardnerOptions = {}): Stage<'twoSp
  * Slope at τ = 0 of the Gardner detector's mean output per unit symbol
  * power for raised-cosine pulses g(t) of roll-off β (t in symbols):
  *   S(τ) = Σₘ g(m − ½ + τ)·[g(m + τ) − g(m − 1 + τ)]
+ * @example gardnerDetectorGain(0.1) // the S-curve slope at zero timing error, for roll-off 0.1
  */
 export function gardnerDetectorGain(rollOff: number): number {
   const s = (tau: number) => {

@@ -23,7 +23,8 @@ function kernel(): InterpolationKernel {
  * The estimate's variance grows as the roll-off shrinks (the line at 1/T
  * weakens): average over more symbols for small roll-offs.
  *
- * @param x, y the field at 2 samples per symbol; y may be omitted (single polarization)
+ * @param x the x field at 2 samples per symbol
+ * @param y the y field, the same length; may be omitted (single polarization)
  * @returns ε̂ in symbols, in [−0.5, 0.5)
  * @throws RangeError for fewer than 64 samples
  * @example const eps = squareTimingEstimate(block.x, block.y); // symbol 0 at ε̂·2 samples

@@ -12,6 +12,7 @@ export interface AnalysisSettings {
   readonly estimateDispersion?: boolean;
   /** Receiver settings beyond the descriptor: stage options, expected DGD… (a pipeline file). */
   readonly receiver?: Partial<Omit<ReceiverSettings, 'modulation' | 'symbolRate' | 'sampleRate'>>;
+  /** Options of the analysis itself (symbols left out, plot data…; see `analyzeCapture`). */
   readonly analysis?: AnalyzeOptions;
   /** Samples per block read from the file (default the loader's). */
   readonly blockSize?: number;
@@ -19,7 +20,9 @@ export interface AnalysisSettings {
 
 /** A capture and its analysis. */
 export interface FileAnalysis {
+  /** The capture as opened: its files and its descriptor with the overrides applied. */
   readonly capture: CaptureDescription;
+  /** What `analyzeCapture` found: figures, diagnostics, failure, record. */
   readonly result: AnalysisResult;
 }
 
@@ -27,6 +30,7 @@ export interface FileAnalysis {
  * Opens a capture (data file or descriptor), streams it through the default
  * receiver and measures it against its reference.
  * @throws InputError for a missing or malformed file, descriptor or reference
+ * @example const { result } = analyzeFile('run-07.csv', { overrides: { modulation: '16qam' } }); if (result.ok) console.log(result.measurement?.ber);
  */
 export function analyzeFile(path: string, settings: AnalysisSettings = {}): FileAnalysis {
   const capture = openCapture(path, settings.overrides ?? {});
@@ -95,6 +99,7 @@ function figures(f: QualityFigures) {
  * figures at the top level and per polarization, the frequency offset, the
  * slips, the penalty, every stage's diagnostics and the reproducibility
  * record. Figures are null when the analysis failed.
+ * @example console.log(JSON.stringify(analysisToJson(analyzeFile('run-07.csv'))));
  */
 export function analysisToJson({ capture, result }: FileAnalysis): Record<string, unknown> {
   const m = result.measurement;

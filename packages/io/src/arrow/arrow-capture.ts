@@ -5,6 +5,7 @@ import { checkReferenceLength, dualPolFromColumns, REFERENCE_COLUMNS } from '../
 import { InputError } from '../errors/input-error.js';
 import { openForReadingAsync } from '../load/open-file.js';
 
+/** Options of the Arrow capture readers ({@link readArrowCapture}, {@link loadArrowCapture}). */
 export interface ArrowCaptureOptions {
   /** Column names (case-insensitive) of the channels, e.g. `{ xi: 'CH1' }`; by default the channel names. */
   readonly columns?: Partial<Record<ChannelName, string>>;
@@ -165,6 +166,7 @@ function* batchesOf(reader: RecordBatchReader, file: string): Generator<RecordBa
  * @throws InputError for a missing, duplicate or non-float column, a null
  *   (naming the column and the 1-based row), NaN or Infinity, no rows, no
  *   sample rate, or bytes that are not Arrow IPC
+ * @example for (const block of readArrowCapture('run-07.arrow')) chain.process(block);
  */
 export function* readArrowCapture(path: string, options: ArrowCaptureOptions = {}): Generator<ChannelBlock, void, undefined> {
   const reader = openSyncReader(path);
@@ -173,7 +175,10 @@ export function* readArrowCapture(path: string, options: ArrowCaptureOptions = {
   blocks.finish();
 }
 
-/** The asynchronous form of {@link readArrowCapture}: reads with a file handle, one batch at a time. */
+/**
+ * The asynchronous form of {@link readArrowCapture}: reads with a file handle, one batch at a time.
+ * @example for await (const block of readArrowCaptureAsync('run-07.arrows')) chain.process(block);
+ */
 export async function* readArrowCaptureAsync(
   path: string,
   options: ArrowCaptureOptions = {},
@@ -209,7 +214,10 @@ export async function* readArrowCaptureAsync(
   }
 }
 
-/** Loads a whole Arrow capture into one block. @throws InputError as {@link readArrowCapture} */
+/**
+ * Loads a whole Arrow capture into one block. @throws InputError as {@link readArrowCapture}
+ * @example const block = loadArrowCapture('run-07.arrow'); block.xi.length;
+ */
 export function loadArrowCapture(path: string, options: ArrowCaptureOptions = {}): ChannelBlock {
   return concatBlocks([...readArrowCapture(path, options)]);
 }
@@ -219,6 +227,7 @@ export function loadArrowCapture(path: string, options: ArrowCaptureOptions = {}
  * descriptor fields may be stored there, each value as JSON text or as a
  * plain string (`"sampleRate": "8e10"`, `"modulation": "16qam"`).
  * @throws InputError when the bytes are not Arrow IPC
+ * @example readArrowMetadata('run-07.arrow').get('symbolRate') // the text stored, e.g. '32e9'
  */
 export function readArrowMetadata(path: string): ReadonlyMap<string, string> {
   return openSyncReader(path).schema.metadata;
@@ -227,6 +236,7 @@ export function readArrowMetadata(path: string): ReadonlyMap<string, string> {
 /**
  * Loads reference symbols from Arrow IPC: float columns `x_re, x_im, y_re, y_im`.
  * @throws InputError as {@link readArrowCapture}, or for fewer than 32 symbols
+ * @example const ref = loadReferenceArrow('tx-symbols.arrow'); ref.x.length / 2; // symbols
  */
 export function loadReferenceArrow(path: string): DualPol {
   const reader = openSyncReader(path);

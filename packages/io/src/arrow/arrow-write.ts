@@ -2,6 +2,7 @@ import type { DualPol, ScopeChannels } from '@intradyne/core';
 import { Float64, makeTable, Table, tableToIPC, Utf8, type Vector, vectorFromArray } from 'apache-arrow';
 import { type AtomicWriteOptions, writeFileAtomic } from '../write/atomic.js';
 
+/** Options of the Arrow writers. */
 export interface ArrowWriteOptions extends AtomicWriteOptions {
   /** IPC format: 'file' (default; random access, `.arrow`) or 'stream' (`.arrows`). */
   readonly format?: 'file' | 'stream';
@@ -24,6 +25,7 @@ function float64Table(columns: Record<string, Float64Array>): Table {
  * the sample rate in the schema metadata (`sampleRate`, Sa/s) with any other
  * metadata given. Atomic (temporary file, then rename).
  * @throws OutputExistsError when the file exists and `overwrite` is not set
+ * @example writeCaptureArrow('run-07.arrow', sim.channels, { metadata: { symbolRate: '32e9', modulation: 'qpsk' } });
  */
 export function writeCaptureArrow(path: string, channels: ScopeChannels, options: ArrowWriteOptions = {}): void {
   const { xi, xq, yi, yq, sampleRate } = channels;
@@ -50,6 +52,7 @@ function parts(z: Float64Array): [Float64Array, Float64Array] {
  * Arrow IPC with float64 columns `x_re, x_im, y_re, y_im`, one row per
  * symbol. Atomic.
  * @throws RangeError when x and y differ in length; OutputExistsError as {@link writeCaptureArrow}
+ * @example writeSymbolsArrow('run-07.symbols.arrow', result.recovered!);
  */
 export function writeSymbolsArrow(path: string, symbols: DualPol, options: ArrowWriteOptions = {}): void {
   if (symbols.x.length !== symbols.y.length) {
@@ -70,6 +73,7 @@ export type ResultRow = Readonly<Record<string, number | string | boolean | null
  * booleans become 0/1, strings make a UTF-8 column; a missing value is null.
  * Atomic.
  * @throws RangeError when a column mixes numbers and strings, or there is no row
+ * @example writeResultsArrow('results.arrow', [{ capture: 'run-07.csv', ber: 1.2e-3, ok: true }]);
  */
 export function writeResultsArrow(path: string, rows: readonly ResultRow[], options: ArrowWriteOptions = {}): void {
   if (rows.length === 0) throw new RangeError('writeResultsArrow: expected at least one row');

@@ -19,19 +19,30 @@ export const DATA_EXTENSIONS: Readonly<Record<string, 'csv' | 'arrow'>> = {
 export interface CaptureDescription {
   /** The data file's name without extension. */
   readonly name: string;
+  /** Path of the data file. */
   readonly dataPath: string;
+  /** Its format, from the extension. */
   readonly format: 'csv' | 'arrow';
   /** The sidecar, or undefined for an Arrow capture described by its schema metadata alone. */
   readonly descriptorPath: string | undefined;
   /** Descriptor fields after defaults and overrides; `sampleRate` always set. */
-  readonly descriptor: CaptureDescriptor & { readonly sampleRate: number };
+  readonly descriptor: CaptureDescriptor & {
+    /** Sa/s, stated or inferred from the time column. */
+    readonly sampleRate: number;
+  };
+  /** Scope sample rate, Sa/s. */
   readonly sampleRate: number;
+  /** Symbol rate, Bd. */
   readonly symbolRate: number;
+  /** sampleRate / symbolRate (need not be an integer). */
   readonly samplesPerSymbol: number;
+  /** The transmitted modulation. */
   readonly modulation: ModulationName;
+  /** Transmitter root-raised-cosine roll-off. */
   readonly rollOff: number;
   /** ps/nm; undefined when not stated (to be estimated). */
   readonly dispersionPsPerNm: number | undefined;
+  /** Path of the reference symbols file, resolved against the descriptor's folder. */
   readonly referencePath: string;
   /** Transmitted symbols, as written (any scale), at least 32. */
   readonly reference: DualPol;
@@ -41,7 +52,10 @@ export interface CaptureDescription {
   blocksAsync(options?: { readonly blockSize?: number }): AsyncGenerator<ChannelBlock, void, undefined>;
 }
 
-/** The sidecar descriptor path of a data file: same folder, same name, `.json`. */
+/**
+ * The sidecar descriptor path of a data file: same folder, same name, `.json`.
+ * @example descriptorPathFor('lab/run-07.csv') // 'lab/run-07.json'
+ */
 export function descriptorPathFor(dataPath: string): string {
   return join(dirname(dataPath), `${basename(dataPath, extname(dataPath))}.json`);
 }
@@ -51,6 +65,7 @@ export function descriptorPathFor(dataPath: string): string {
  * (the same-named `.csv`, `.arrow` or `.arrows` beside it).
  * @throws InputError when the file does not exist, has no data extension, or
  *   the descriptor has no single data file beside it
+ * @example resolveDataPath('lab/run-07.json') // 'lab/run-07.csv' (or .arrow, whichever exists)
  */
 export function resolveDataPath(path: string): string {
   const ext = extname(path).toLowerCase();
@@ -109,6 +124,7 @@ function metadataFields(meta: ReadonlyMap<string, string>): Map<string, FieldVal
  * @throws InputError naming the file, line, column and field of any problem:
  *   no descriptor, a bad field, a missing or malformed reference, a reference
  *   of another modulation, no sample rate
+ * @example const c = openCapture('lab/run-07.csv', { modulation: '16qam' }); for (const block of c.blocks()) chain.process(block);
  */
 export function openCapture(path: string, overrides: Readonly<Record<string, unknown>> = {}): CaptureDescription {
   const dataPath = resolveDataPath(path);
@@ -194,6 +210,7 @@ export function openCapture(path: string, overrides: Readonly<Record<string, unk
 /**
  * Loads reference symbols by extension: `.csv` or `.arrow`/`.arrows`.
  * @throws InputError naming the descriptor when the file is missing or of another type
+ * @example const ref = loadReference('tx-symbols.csv', 'lab/run-07.json'); // CSV or Arrow, checked
  */
 export function loadReference(path: string, descriptorFile: string, written = path): DualPol {
   if (!existsSync(path)) {
@@ -216,6 +233,7 @@ export function loadReference(path: string, descriptorFile: string, written = pa
  * (a reference file has no descriptor). Names starting with '.' are skipped
  * (temporary files of atomic writes, hidden folders).
  * @returns data file paths, sorted
+ * @example listCaptures('osnr-sweep') // ['osnr-sweep/a/run-01.csv', 'osnr-sweep/run-02.arrow', …]
  */
 export function listCaptures(dir: string): string[] {
   const found: string[] = [];

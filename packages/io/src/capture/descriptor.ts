@@ -26,20 +26,31 @@ import { parseJsonWithPositions, plainJson } from './json-positions.js';
  * Any other field is refused, so that a misspelt name does not pass silently.
  */
 export interface CaptureDescriptor {
+  /** Scope sample rate, Sa/s (may be inferred from a time column). */
   readonly sampleRate?: number;
+  /** Symbol rate, Bd. */
   readonly symbolRate: number;
+  /** The transmitted modulation. */
   readonly modulation: ModulationName;
+  /** Path of the reference symbols, relative to the descriptor's folder. */
   readonly reference: string;
+  /** Transmitter root-raised-cosine roll-off in (0, 1] (default 0.1). */
   readonly rollOff: number;
+  /** Accumulated chromatic dispersion, ps/nm; absent: estimated blindly. */
   readonly dispersionPsPerNm?: number;
   /** Receiver skew per channel from its calibration, ps (each channel is advanced by its value). */
   readonly skewPs?: Partial<Record<'xi' | 'xq' | 'yi' | 'yq', number>>;
+  /** Header names of the CSV columns, e.g. `{ xi: 'CH1' }`. */
   readonly columns?: Partial<Record<CaptureColumn, string>>;
+  /** Free text. */
   readonly notes?: string;
 }
 
 /** Defaults of the optional descriptor fields. */
-export const DESCRIPTOR_DEFAULTS = { rollOff: 0.1 } as const;
+export const DESCRIPTOR_DEFAULTS = {
+  /** Transmitter roll-off (the simulator's default). */
+  rollOff: 0.1,
+} as const;
 
 /** The fields a descriptor may hold. */
 export const DESCRIPTOR_FIELDS = [
@@ -85,6 +96,7 @@ export function parseDescriptor(text: string, file: string): CaptureDescriptor {
 /**
  * Reads a descriptor file.
  * @throws InputError as {@link parseDescriptor}, or when the file cannot be read
+ * @example const d = readDescriptor('lab/run-07.json'); d.symbolRate;
  */
 export function readDescriptor(path: string): CaptureDescriptor {
   let text: string;

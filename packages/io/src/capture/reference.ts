@@ -60,6 +60,7 @@ export function referenceResolver(file: string) {
  * @returns the symbols, interleaved complex, one array per polarization
  * @throws InputError for any problem of the file (as the capture loader), or
  *   fewer than {@link MIN_REFERENCE_SYMBOLS} rows
+ * @example const ref = loadReferenceCsv('tx-symbols.csv'); // header x_re,x_im,y_re,y_im
  */
 export function loadReferenceCsv(path: string): DualPol {
   const blocks: TableBlock[] = [];
@@ -112,6 +113,7 @@ export function checkReferenceLength(symbols: DualPol, file: string): void {
  * symbols misses a level with probability 8·(7/8)^128 < 10^−6).
  * @throws InputError naming the file, the symbol (1-based) and the
  *   polarization of the first point off the constellation, or the levels never used
+ * @example checkReferenceConstellation(ref, constellation('16qam'), 'tx-symbols.csv'); // throws InputError for a QPSK reference
  */
 export function checkReferenceConstellation(symbols: DualPol, c: Constellation, file: string): void {
   const l = c.levelsPerAxis;

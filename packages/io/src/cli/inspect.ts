@@ -113,22 +113,38 @@ function summarize(s: ChannelStats): ChannelSummary {
 
 /** What `inspect` reports. */
 export interface InspectReport {
+  /** Path of the data file. */
   readonly capture: string;
+  /** Its format. */
   readonly format: 'csv' | 'arrow';
+  /** Path of the descriptor, or null when there is none. */
   readonly descriptor: string | null;
+  /** Samples per channel. */
   readonly samples: number;
+  /** Sa/s. */
   readonly sampleRate: number;
+  /** Length of the capture, s. */
   readonly durationS: number;
+  /** DC, rms, extremes and clipping of each channel. */
   readonly channels: Readonly<Record<ChannelName, ChannelSummary>>;
+  /** Summary of the Welch power spectrum of x = xi + j·xq. */
   readonly spectrum: SpectrumSummary & {
+    /** Samples per Welch segment. */
     readonly segmentLength: number;
+    /** Segments averaged. */
     readonly segments: number;
+    /** Frequency resolution, Hz. */
     readonly resolutionHz: number;
   };
+  /** The symbol rate seen in the spectrum, against the descriptor's. */
   readonly symbolRate: {
+    /** Estimated symbol rate, Bd. */
     readonly estimateBd: number;
+    /** How it was estimated, in words. */
     readonly method: string;
+    /** The descriptor's symbol rate, Bd, or null without a descriptor. */
     readonly statedBd: number | null;
+    /** (estimate − stated) / stated, or null without a descriptor. */
     readonly relativeDifference: number | null;
   };
 }
@@ -136,6 +152,7 @@ export interface InspectReport {
 /**
  * Inspects a capture, streaming it once (memory: a block and the spectrum accumulators).
  * @throws InputError for bad input; UsageError when the capture is shorter than 64 samples
+ * @example inspectCapture('lab/run-07.csv').symbolRate.estimateBd
  */
 export function inspectCapture(path: string, options: { sampleRate?: number; segmentLength?: number } = {}): InspectReport {
   const dataPath = resolveDataPath(path);

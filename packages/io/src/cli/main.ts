@@ -1,4 +1,5 @@
 #!/usr/bin/env node
+import { realpathSync } from 'node:fs';
 import { LIBRARY_VERSION, OptionError } from '@intradyne/core';
 import { InputError } from '../errors/input-error.js';
 import { OutputExistsError } from '../write/atomic.js';
@@ -49,6 +50,7 @@ Exit codes: 0 done, 1 the analysis failed, 2 bad usage or bad input.
 /**
  * Runs the command line; returns the exit code, or a promise of it for a
  * command that works asynchronously (sweep).
+ * @example process.exitCode = await main(['analyze', 'lab/run-07.csv', '--json']);
  */
 export function main(
   argv: readonly string[],
@@ -85,7 +87,8 @@ export function main(
 }
 
 // Run when executed directly (as the bin or with node), not when imported.
-const invoked = process.argv[1] ? new URL(`file://${process.argv[1]}`).pathname : '';
+// An installed bin is a symlink (node_modules/.bin/intradyne): compare its target.
+const invoked = process.argv[1] ? new URL(`file://${realPath(process.argv[1])}`).pathname : '';
 if (invoked && import.meta.url.endsWith(invoked.replace(/^.*\/dist\//, '/dist/'))) {
   const code = main(process.argv.slice(2));
   if (typeof code === 'number') process.exitCode = code;
@@ -93,4 +96,12 @@ if (invoked && import.meta.url.endsWith(invoked.replace(/^.*\/dist\//, '/dist/')
     void code.then((c) => {
       process.exitCode = c;
     });
+}
+
+function realPath(path: string): string {
+  try {
+    return realpathSync(path);
+  } catch {
+    return path;
+  }
 }

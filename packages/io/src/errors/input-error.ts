@@ -6,8 +6,10 @@
  * The message reads `FILE:LINE:COLUMN: WHAT: expected EXPECTED, received RECEIVED`;
  * the parts that do not apply are left out (a row of an Arrow file has no
  * line; a whole-file problem has no position).
+ * @example throw new InputError({ file: 'run-07.json', line: 3, column: 17 }, "field 'symbolRate'", 'a positive number of Bd', 'the string "32 GBd"');
  */
 export class InputError extends Error {
+  /** Always 'InputError'. */
   override readonly name = 'InputError';
   /** The file at fault (as given by the caller). */
   readonly file: string;
@@ -17,7 +19,9 @@ export class InputError extends Error {
   readonly column: number | undefined;
   /** What was being read: a column name, a descriptor field, a row… */
   readonly what: string;
+  /** What was expected there, in words. */
   readonly expected: string;
+  /** What was found (quoted and shortened). */
   readonly received: string;
 
   constructor(where: InputLocation, what: string, expected: string, received: string) {
@@ -36,8 +40,11 @@ export class InputError extends Error {
 
 /** Where in a file a problem sits. */
 export interface InputLocation {
+  /** The file at fault. */
   readonly file: string;
+  /** Line, 1-based. */
   readonly line?: number;
+  /** Column, 1-based. */
   readonly column?: number;
 }
 

@@ -8,6 +8,7 @@ import { SAMPLE_RATE_TOLERANCE, TimeAxis } from './time-axis.js';
 /** Column names of a capture CSV: the four channels and the time column. */
 export type CaptureColumn = ChannelName | 't';
 
+/** Options of the CSV capture readers ({@link readCsvCapture}, {@link loadCsvCapture}). */
 export interface CsvCaptureOptions {
   /**
    * Header names of the columns (case-insensitive), e.g. `{ xi: 'CH1', xq: 'CH2', yi: 'CH3', yq: 'CH4', t: 'Time' }`;
@@ -196,7 +197,8 @@ function* captureBlocks(file: string, read: ReadFn, options: CsvCaptureOptions):
  * names the columns: `xi, xq, yi, yq` (case-insensitive, any order, or
  * mapped with `columns`), an optional time column `t` in seconds, other
  * columns ignored. The sample rate comes from `sampleRate` or from the time
- * column (see {@link TimeAxis} for the inference and its tolerances).
+ * column (its steps must agree within {@link TIME_STEP_TOLERANCE}, a stated
+ * rate with the inferred one within {@link SAMPLE_RATE_TOLERANCE}).
  *
  * @param path the CSV file
  * @returns a generator of `channels` blocks of `blockSize` samples (the last one shorter)
@@ -216,6 +218,7 @@ export function* readCsvCapture(path: string, options: CsvCaptureOptions = {}): 
 /**
  * Reads a capture CSV held in memory (same format and errors as {@link readCsvCapture});
  * `name` stands for the file in messages.
+ * @example for (const block of readCsvCaptureBytes(bytes, 'upload.csv', { sampleRate: 80e9 })) chain.process(block);
  */
 export function* readCsvCaptureBytes(
   bytes: Uint8Array,
@@ -238,6 +241,7 @@ export function* readCsvCaptureBytes(
 /**
  * The asynchronous form of {@link readCsvCapture} (reads with a file handle;
  * same blocks, same errors).
+ * @example for await (const block of readCsvCaptureAsync('run-07.csv', { sampleRate: 80e9 })) chain.process(block);
  */
 export async function* readCsvCaptureAsync(
   path: string,
@@ -263,6 +267,7 @@ export async function* readCsvCaptureAsync(
  * the time column) and an optional time column. The files must have the
  * same number of rows and agree on the sample rate.
  * @throws InputError for any problem of a file, or when the files differ in length or rate
+ * @example readCsvCaptureFiles({ xi: 'ch1.csv', xq: 'ch2.csv', yi: 'ch3.csv', yq: 'ch4.csv' }, { sampleRate: 80e9 })
  */
 export function* readCsvCaptureFiles(
   files: ChannelFiles,
@@ -315,6 +320,7 @@ export function* readCsvCaptureFiles(
 /**
  * Loads a whole capture CSV into one block (memory: the capture itself).
  * @throws InputError as {@link readCsvCapture}
+ * @example const block = loadCsvCapture('run-07.csv', { sampleRate: 80e9, columns: { xi: 'CH1', xq: 'CH2', yi: 'CH3', yq: 'CH4' } });
  */
 export function loadCsvCapture(path: string, options: CsvCaptureOptions = {}): ChannelBlock {
   return concatBlocks([...readCsvCapture(path, options)]);

@@ -9,10 +9,13 @@ import { flattenValues, formatNumber, gridTable, valueTable } from './value-tabl
 export interface SweepReportContext {
   /** The folder or manifest swept (or the shards merged). */
   readonly source: string;
+  /** The program that made the table (shown in the record). */
   readonly library: string;
+  /** Its version (`LIBRARY_VERSION`). */
   readonly version: string;
-  /** The analysis settings every capture was analysed with (as JSON), and their SHA-256. */
+  /** The analysis settings every capture was analysed with (as JSON). */
   readonly settings?: unknown;
+  /** The SHA-256 of those settings (`settingsFingerprint`). */
   readonly settingsSha256?: string;
 }
 
@@ -40,6 +43,7 @@ export function sweepPoint(r: SweepRow): SweepPoint | null {
  * results rows (a sweep's or merged shards'): BER against SNR with the
  * 95 % intervals, the theory curves and the FEC threshold; GMI and NGMI
  * against SNR; the table of every row; the settings and fingerprints.
+ * @example writeReport('osnr.html', sweepReport(report.rows, { source: 'osnr-sweep', library: 'intradyne', version: LIBRARY_VERSION }));
  */
 export function sweepReport(rows: readonly SweepRow[], context: SweepReportContext): string {
   const points = rows.map(sweepPoint).filter((p): p is SweepPoint => p !== null);

@@ -7,6 +7,7 @@ import { writeFileAtomic } from '../write/atomic.js';
  * never one of the inputs it was made from.
  * @param inputs the files the report describes (data, descriptor, reference…)
  * @throws InputError when `path` is one of `inputs`
+ * @example writeReport('run-07.html', analysisReport(analysis), ['run-07.csv', 'run-07.json']);
  */
 export function writeReport(path: string, html: string, inputs: readonly string[] = []): void {
   const target = resolve(path);

@@ -6,14 +6,21 @@ import { mergeOptions, type Scenario } from './scenario.js';
 
 /** What `runScenario` wrote for one capture. */
 export interface WrittenCapture {
+  /** The capture's name. */
   readonly name: string;
+  /** Path of the data file written. */
   readonly data: string;
+  /** Path of the descriptor written. */
   readonly descriptor: string;
+  /** Path of the reference written. */
   readonly reference: string;
+  /** The simulated capture, with its truth. */
   readonly capture: SimulatedCapture;
+  /** The simulator options it was made with. */
   readonly options: SimulationOptions;
 }
 
+/** Options of {@link runScenario}. */
 export interface RunScenarioOptions {
   /** Replace files that exist (default false). */
   readonly overwrite?: boolean;
@@ -27,6 +34,7 @@ export interface RunScenarioOptions {
  * Simulates every capture of a scenario into `outDir`: per capture a CSV
  * (`<name>.csv`), its descriptor (`<name>.json`) and the transmitted symbols
  * (`<name>-reference.csv`, which has no descriptor of its own).
+ * @example runScenario(builtInScenario('qpsk-b2b')!, 'captures', { symbols: 16384 });
  */
 export function runScenario(scenario: Scenario, outDir: string, options: RunScenarioOptions = {}): WrittenCapture[] {
   mkdirSync(outDir, { recursive: true });

@@ -12,16 +12,29 @@ import type { SimulationOptions } from '@intradyne/core';
  * `statesSkew` (default true): whether it states the receiver's skews.
  */
 export interface Scenario {
+  /** Scenario name. */
   readonly name: string;
+  /** What it shows, in a sentence. */
   readonly description: string;
+  /** Simulator options shared by every capture. */
   readonly base: Partial<SimulationOptions>;
-  readonly captures: readonly ({ readonly name: string; readonly timeColumn?: boolean } & Partial<SimulationOptions>)[];
+  /** The captures: a name and the options that differ from `base`. */
+  readonly captures: readonly ({
+    /** File name of the capture, without extension. */
+    readonly name: string;
+    /** Write a `t` column (seconds) to the CSV (default false). */
+    readonly timeColumn?: boolean;
+  } & Partial<SimulationOptions>)[];
+  /** Whether the descriptor states the accumulated dispersion (default true). */
   readonly statesDispersion?: boolean;
   /** Whether the descriptor states the receiver's skews, as a calibrated front end knows them (default true). */
   readonly statesSkew?: boolean;
 }
 
-/** Deep merge of plain objects: `over` wins; arrays and values replace. */
+/**
+ * Deep merge of plain objects: `over` wins; arrays and values replace.
+ * @example mergeOptions({ channel: { esN0Db: 10, linewidthHz: 1e5 } }, { channel: { esN0Db: 12 } }) // { channel: { esN0Db: 12, linewidthHz: 1e5 } }
+ */
 export function mergeOptions<T extends object>(base: T, over: Partial<T>): T {
   const out: Record<string, unknown> = { ...(base as Record<string, unknown>) };
   for (const [k, v] of Object.entries(over as Record<string, unknown>)) {
@@ -94,7 +107,10 @@ export const BUILT_IN_SCENARIOS: readonly Scenario[] = [
   },
 ];
 
-/** The built-in scenario of this name, or undefined. */
+/**
+ * The built-in scenario of this name, or undefined.
+ * @example builtInScenario('metro-16qam')?.captures.length
+ */
 export function builtInScenario(name: string): Scenario | undefined {
   return BUILT_IN_SCENARIOS.find((s) => s.name === name);
 }

@@ -5,7 +5,9 @@ import { rowFromAnalysis, rowFromError, type SweepRow } from './result-row.js';
 
 /** One capture to analyse, as sent to a worker. */
 export interface SweepTask {
+  /** The capture's path relative to the sweep root: its key in the journal. */
   readonly key: string;
+  /** The capture's data file. */
   readonly path: string;
   /** The input hash of the stored row made with the same settings, if any: equal means skip. */
   readonly storedInputSha256: string | null;
@@ -13,11 +15,22 @@ export interface SweepTask {
 
 /** What a worker sends back for a task. */
 export type SweepOutcome =
-  | { readonly kind: 'skipped'; readonly key: string; readonly inputSha256: string }
   | {
-      readonly kind: 'analysed';
+      /** The stored row stands: the input did not change. */
+      readonly kind: 'skipped';
+      /** The task's key. */
       readonly key: string;
+      /** SHA-256 of the capture's files. */
+      readonly inputSha256: string;
+    }
+  | {
+      /** The capture was analysed (or failed to load). */
+      readonly kind: 'analysed';
+      /** The task's key. */
+      readonly key: string;
+      /** SHA-256 of the capture's files; null when they could not be read. */
       readonly inputSha256: string | null;
+      /** The result row. */
       readonly row: SweepRow;
       /** False for an unexpected error: not stored, so that a re-run tries again. */
       readonly store: boolean;
@@ -28,6 +41,7 @@ export type SweepOutcome =
  * analyses it with the default receiver. A bad capture (InputError) becomes
  * a row with check 'input'; an unexpected error a row with check 'error'.
  * Never throws.
+ * @example runSweepTask({ key: 'run-07.csv', path: 'lab/run-07.csv', storedInputSha256: null }, {})
  */
 export function runSweepTask(task: SweepTask, settings: AnalysisSettings): SweepOutcome {
   const inputSha256 = captureInputHash(task.path);

@@ -10,6 +10,7 @@ const sha256 = (text: string) => createHash('sha256').update(text).digest('hex')
  * With the input hash (which covers the descriptor) it fixes the pipeline a
  * capture is analysed with, so a re-run may skip a capture whose stored row
  * has both.
+ * @example settingsFingerprint({ overrides: { modulation: '16qam' } }) // 64 hex digits
  */
 export function settingsFingerprint(settings: AnalysisSettings): string {
   return sha256(JSON.stringify({ version: LIBRARY_VERSION, settings }, sortedKeys));
@@ -19,6 +20,7 @@ export function settingsFingerprint(settings: AnalysisSettings): string {
  * SHA-256 (hex) of the library version and the chain as the analysis
  * described it (`record.pipeline`: every stage with every option): the
  * pipeline fingerprint of a results row.
+ * @example pipelineFingerprint(LIBRARY_VERSION, result.record.pipeline) // 64 hex digits
  */
 export function pipelineFingerprint(version: string, pipeline: unknown): string {
   return sha256(`${version}\n${JSON.stringify(pipeline)}`);

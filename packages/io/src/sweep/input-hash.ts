@@ -28,6 +28,7 @@ function hashFile(hash: Hash, path: string): void {
  * as fast as the disk; far cheaper than an analysis.
  * @param path the data file or the descriptor
  * @returns null when the files cannot be read (the analysis then reports why)
+ * @example captureInputHash('lab/run-07.csv') // SHA-256 of data, descriptor and reference; null when unreadable
  */
 export function captureInputHash(path: string): string | null {
   try {

@@ -3,9 +3,13 @@ import type { SweepRow } from './result-row.js';
 
 /** One stored result: the row and what it was made from. */
 export interface JournalEntry {
+  /** The capture's key: its path relative to the sweep root. */
   readonly capture: string;
+  /** SHA-256 of its data, descriptor and reference bytes. */
   readonly inputSha256: string;
+  /** SHA-256 of the library version and the analysis settings. */
   readonly settingsSha256: string;
+  /** The result row. */
   readonly row: SweepRow;
 }
 
@@ -17,6 +21,7 @@ export const JOURNAL_FILE = 'journal.jsonl';
  * line that does not parse (the last line of a run killed while writing it)
  * is ignored, so its capture is analysed again.
  * @returns the entries, later ones after earlier ones; empty when the file does not exist
+ * @example readJournal('osnr-sweep-sweep/journal.jsonl').map((e) => e.capture)
  */
 export function readJournal(path: string): JournalEntry[] {
   if (!existsSync(path)) return [];

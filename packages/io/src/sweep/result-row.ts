@@ -46,6 +46,7 @@ export const RESULT_COLUMNS = [
   'pipeline_sha256',
 ] as const;
 
+/** One column name of the results table. */
 export type ResultColumn = (typeof RESULT_COLUMNS)[number];
 
 /** The columns that hold text; the others hold numbers (`ok` as 1/0 in Arrow). */
@@ -58,6 +59,7 @@ export const TEXT_COLUMNS: ReadonlySet<ResultColumn> = new Set<ResultColumn>([
   'samples_sha256',
   'pipeline_sha256',
 ]);
+/** One row of the results table: a value (or null) per column. */
 export type SweepRow = Readonly<Record<ResultColumn, number | string | boolean | null>> & ResultRow;
 
 type Figures = { ber: number | null; snrDb: number | null; gmi: number | null };

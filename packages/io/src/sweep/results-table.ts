@@ -5,7 +5,9 @@ import { RESULT_COLUMNS, type SweepRow, TEXT_COLUMNS } from './result-row.js';
 
 /** The files a results table was written to. */
 export interface ResultsTableFiles {
+  /** Path of `results.csv`. */
   readonly csvPath: string;
+  /** Path of `results.arrow`. */
   readonly arrowPath: string;
 }
 

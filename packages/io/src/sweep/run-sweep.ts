@@ -14,6 +14,7 @@ import type { SweepInputs } from './sweep-inputs.js';
 import { writeSweepOutputs } from './sweep-outputs.js';
 import { runOnWorkers } from './worker-pool.js';
 
+/** Options of {@link runSweep}. */
 export interface SweepOptions {
   /** Output folder: results.csv, results.arrow and the journal (for a shard, in its subfolder). */
   readonly out: string;
@@ -25,6 +26,7 @@ export interface SweepOptions {
   readonly shard?: ShardSpec;
   /** Worker threads (≥ 1). */
   readonly jobs: number;
+  /** Analysis settings applied to every capture (descriptor overrides and receiver options). */
   readonly settings: AnalysisSettings;
   /** Also write the HTML report of the final rows there. */
   readonly report?: string;
@@ -34,6 +36,7 @@ export interface SweepOptions {
 
 /** What a sweep did. */
 export interface SweepReport {
+  /** Captures in the sweep. */
   readonly captures: number;
   /** The folder written: `out`, or the shard's subfolder of it. */
   readonly out: string;
@@ -45,8 +48,11 @@ export interface SweepReport {
   readonly skipped: number;
   /** Rows whose analysis failed or whose capture could not be read. */
   readonly failed: number;
+  /** Path of results.csv. */
   readonly csvPath: string;
+  /** Path of results.arrow. */
   readonly arrowPath: string;
+  /** Path of the resume journal. */
   readonly journalPath: string;
   /** The HTML report, when asked for. */
   readonly reportPath: string | null;
@@ -54,7 +60,10 @@ export interface SweepReport {
   readonly rows: readonly SweepRow[];
 }
 
-/** Default output folder: `<input>-sweep` beside the folder swept or the manifest (its extension dropped). */
+/**
+ * Default output folder: `<input>-sweep` beside the folder swept or the manifest (its extension dropped).
+ * @example defaultSweepOut('data/osnr', 'folder') // 'data/osnr-sweep'
+ */
 export function defaultSweepOut(input: string, kind: 'folder' | 'manifest'): string {
   const trimmed = input.replace(/[/\\]+$/, '');
   return `${kind === 'manifest' ? trimmed.replace(/\.[^./\\]*$/, '') : trimmed}-sweep`;
@@ -93,8 +102,10 @@ export function checkSweepOut(inputs: SweepInputs, out: string): void {
  * hash and the settings fingerprint; a capture whose latest stored row has
  * the hash of its files now and the same settings is skipped. The table is
  * then rebuilt from the stored rows, in the sweep's order.
+ * With `options.report`, also writes the sweep's HTML report there.
  * @throws InputError when `out` is the swept folder, lies inside it, or
- *   holds an input file
+ *   holds an input file, or when the report path is an input
+ * @example const report = await runSweep(sweepInputs('osnr-sweep'), { out: 'results', jobs: 4, settings: {} });
  */
 export async function runSweep(inputs: SweepInputs, options: SweepOptions): Promise<SweepReport> {
   checkSweepOut(inputs, options.out);

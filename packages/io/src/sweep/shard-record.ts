@@ -17,6 +17,7 @@ export const SHARD_RECORD_FORMAT = 'intradyne sweep shard, version 1';
 export interface PlacedRow {
   /** 0-based position of the capture in the sweep's order (sorted folder keys, or the manifest's order). */
   readonly position: number;
+  /** The capture's row of the results table. */
   readonly row: SweepRow;
 }
 
@@ -26,17 +27,27 @@ export interface PlacedRow {
  * (so that shards of different inputs are not merged) and its rows.
  */
 export interface ShardRecord {
+  /** {@link SHARD_RECORD_FORMAT}: what the file is, and which layout. */
   readonly format: typeof SHARD_RECORD_FORMAT;
   /** Shard index, 0 ≤ shard < shards. */
   readonly shard: number;
+  /** Number of shards N of the split. */
   readonly shards: number;
   /** The library version (`LIBRARY_VERSION`) the shard ran with. */
   readonly version: string;
   /** `settingsFingerprint` of the settings (covers the version too). */
   readonly settingsSha256: string;
+  /** The analysis settings themselves (named when two shards disagree). */
   readonly settings: AnalysisSettings;
-  /** The whole sweep: folder or manifest, its number of captures, and {@link listingFingerprint} of its keys. */
-  readonly input: { readonly kind: SweepInputs['kind']; readonly captures: number; readonly listingSha256: string };
+  /** The whole sweep: folder or manifest, its number of captures, and the SHA-256 of its capture keys in order. */
+  readonly input: {
+    /** A folder or a manifest. */
+    readonly kind: SweepInputs['kind'];
+    /** Captures of the whole sweep. */
+    readonly captures: number;
+    /** SHA-256 of the whole sweep's capture keys, in order, one per line. */
+    readonly listingSha256: string;
+  };
   /** The shard's rows, in the sweep's order. */
   readonly rows: readonly PlacedRow[];
 }
@@ -64,6 +75,7 @@ const isWhole = (v: unknown): v is number => typeof v === 'number' && Number.isS
 /**
  * Reads and checks a shard record.
  * @throws InputError naming the file and the field that is missing or wrong
+ * @example readShardRecord('lab-sweep/shard-2-of-4/shard.json').rows.length // captures of shard 2
  */
 export function readShardRecord(path: string): ShardRecord {
   let doc: Record<string, unknown>;

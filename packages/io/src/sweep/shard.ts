@@ -6,7 +6,9 @@ import { Sha256 } from '@intradyne/core';
  * completion indices and Slurm arrays written `--array=0-(N-1)` number them.
  */
 export interface ShardSpec {
+  /** This shard, K of `--shard K/N` (0 ≤ index < count). */
   readonly index: number;
+  /** Number of shards, N (≥ 1). */
   readonly count: number;
 }
 
@@ -30,8 +32,16 @@ export function shardOf(key: string, count: number): number {
   return Number(BigInt(`0x${hex.slice(0, 16)}`) % BigInt(count));
 }
 
-/** Keeps the items whose key falls in the shard, in their order. */
-export function inShard<T extends { readonly key: string }>(items: readonly T[], shard: ShardSpec): T[] {
+/**
+ * Keeps the items whose key falls in the shard, in their order.
+ * @example inShard(sweepInputs('osnr-sweep').captures, { index: 1, count: 4 })
+ */
+export function inShard<
+  T extends {
+    /** The item's shard key (a capture's path relative to the sweep root). */
+    readonly key: string;
+  },
+>(items: readonly T[], shard: ShardSpec): T[] {
   return items.filter((c) => shardOf(c.key, shard.count) === shard.index);
 }
 

@@ -13,6 +13,7 @@ export interface SweepCapture {
 
 /** What a sweep runs on. */
 export interface SweepInputs {
+  /** Whether a folder or a manifest was given. */
   readonly kind: 'folder' | 'manifest';
   /** The folder the keys are relative to: the folder swept, or the manifest's folder. */
   readonly root: string;
@@ -32,6 +33,7 @@ const toKey = (p: string) => p.split(sep).join('/');
  * surrounding white space. The captures keep the manifest's order.
  * @throws InputError when the input does not exist, a folder holds no
  *   capture, a manifest is empty or lists a capture twice (naming the line)
+ * @example sweepInputs('best-two.txt').captures.map((c) => c.key)
  */
 export function sweepInputs(input: string): SweepInputs {
   let isFolder: boolean;
@@ -58,6 +60,7 @@ export function sweepInputs(input: string): SweepInputs {
 /**
  * Reads a manifest (format in {@link sweepInputs}).
  * @throws InputError naming the manifest and line of a capture listed twice, or an empty manifest
+ * @example readManifest('best-two.txt') // the captures listed, in order
  */
 export function readManifest(path: string): SweepCapture[] {
   const root = dirname(path);

@@ -15,6 +15,7 @@ export interface SweepOutputPaths extends ResultsTableFiles {
  * place that turns final rows into files, for a sweep and for anything
  * else that assembles final rows (merged shards).
  * @throws InputError when the report path is one of `report.inputs`
+ * @example writeSweepOutputs('lab-sweep', rows, { path: 'lab.html', context: { source: 'lab', library: 'intradyne', version: LIBRARY_VERSION } });
  */
 export function writeSweepOutputs(
   out: string,

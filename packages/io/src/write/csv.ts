@@ -9,6 +9,7 @@ function num(v: number): string {
   return Object.is(v, -0) ? '0' : String(v);
 }
 
+/** Options of {@link writeCaptureCsv}. */
 export interface CaptureCsvOptions extends AtomicWriteOptions {
   /** Comment lines written first, each prefixed with '# '. */
   readonly comments?: readonly string[];
@@ -20,6 +21,7 @@ export interface CaptureCsvOptions extends AtomicWriteOptions {
  * Writes a four-channel capture as CSV: optional `#` comment lines, a header
  * row `xi,xq,yi,yq` (preceded by `t` with `timeColumn`), one row per sample.
  * Atomic (temporary file, then rename).
+ * @example writeCaptureCsv('run-07.csv', sim.channels, { comments: ['bench 3'], timeColumn: true });
  */
 export function writeCaptureCsv(path: string, channels: ScopeChannels, options: CaptureCsvOptions = {}): void {
   const { xi, xq, yi, yq, sampleRate } = channels;
@@ -46,6 +48,7 @@ export function writeCaptureCsv(path: string, channels: ScopeChannels, options: 
 /**
  * Writes reference symbols as CSV with header `x_re,x_im,y_re,y_im`, one row
  * per transmitted symbol. Atomic.
+ * @example writeReferenceCsv('run-07-reference.csv', sim.reference);
  */
 export function writeReferenceCsv(path: string, symbols: DualPol, options: CaptureCsvOptions = {}): void {
   const { x, y } = symbols;
@@ -69,7 +72,10 @@ export function writeReferenceCsv(path: string, symbols: DualPol, options: Captu
   );
 }
 
-/** Writes a JSON document (2-space indented) atomically. */
+/**
+ * Writes a JSON document (2-space indented) atomically.
+ * @example writeJsonAtomic('run-07.json', { sampleRate: 64e9, symbolRate: 32e9, modulation: 'qpsk', reference: 'run-07-reference.csv' });
+ */
 export function writeJsonAtomic(path: string, value: unknown, options: AtomicWriteOptions = {}): void {
   writeFileAtomic(path, (append) => append(`${JSON.stringify(value, null, 2)}\n`), options);
 }

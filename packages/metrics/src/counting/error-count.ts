@@ -3,9 +3,13 @@ import { clopperPearson, type Interval } from './clopper-pearson.js';
 
 /** Bit and symbol errors between decided and transmitted labels. */
 export interface ErrorCount {
+  /** Bits that differ. */
   readonly bitErrors: number;
+  /** Bits compared: symbols · log2 M. */
   readonly bits: number;
+  /** Symbols whose label differs. */
   readonly symbolErrors: number;
+  /** Symbols compared. */
   readonly symbols: number;
 }
 

@@ -2,6 +2,7 @@ import { constellation, type ModulationName, OptionError } from '@intradyne/core
 
 /** A 2-D histogram of the recovered symbols of both polarizations on one fixed square grid. */
 export interface ConstellationHistogram {
+  /** The stated modulation, whose ideal points the grid was sized for. */
   readonly modulation: ModulationName;
   /** Cells per axis. */
   readonly bins: number;
@@ -13,11 +14,17 @@ export interface ConstellationHistogram {
    * [−E + r·w, −E + (r + 1)·w), w = 2E/bins (row 0 at the bottom).
    */
   readonly x: Uint32Array;
+  /** Counts of the y polarization, laid out as `x`. */
   readonly y: Uint32Array;
   /** Symbols counted per polarization (inside the grid or not). */
   readonly counted: number;
   /** Symbols that fell outside the grid, per polarization. */
-  readonly outside: { readonly x: number; readonly y: number };
+  readonly outside: {
+    /** Symbols of the x polarization outside the grid. */
+    readonly x: number;
+    /** Symbols of the y polarization outside the grid. */
+    readonly y: number;
+  };
 }
 
 /** Options of {@link ConstellationDensity}. */
@@ -42,7 +49,9 @@ export interface ConstellationDensityOptions {
  * @example const d = new ConstellationDensity('16qam', { skipLeading: 2048 }); d.push(block); const h = d.result();
  */
 export class ConstellationDensity {
+  /** Cells per axis. */
   readonly bins: number;
+  /** Half-width of the square grid, unit-power constellation units. */
   readonly extent: number;
   private readonly skipLeading: number;
   private readonly hold: number;
@@ -54,6 +63,7 @@ export class ConstellationDensity {
   private counted = 0;
 
   constructor(
+    /** The stated modulation: sizes the grid. */
     readonly modulation: ModulationName,
     options: ConstellationDensityOptions = {},
   ) {

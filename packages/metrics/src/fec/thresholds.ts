@@ -11,9 +11,11 @@ import { qFactorDb } from '../quality/snr.js';
  */
 export type FecThreshold =
   | {
+      /** Name, for reports. */
       readonly name: string;
       /** Hard decision: passes when the BER is at most `limit`. */
       readonly kind: 'ber';
+      /** Largest pre-FEC BER the code corrects. */
       readonly limit: number;
       /** Redundancy of the code, % of the payload. */
       readonly overheadPercent: number;
@@ -21,11 +23,15 @@ export type FecThreshold =
       readonly source: string;
     }
   | {
+      /** Name, for reports. */
       readonly name: string;
       /** Soft decision: passes when the NGMI is at least `limit`. */
       readonly kind: 'ngmi';
+      /** Least NGMI the code needs. */
       readonly limit: number;
+      /** Redundancy of the code, % of the payload. */
       readonly overheadPercent: number;
+      /** Where the number comes from. */
       readonly source: string;
     };
 
@@ -40,25 +46,43 @@ export type FecThreshold =
  *   and {@link fecThreshold} for the NGMI limit of the actual code.
  */
 export const FEC_THRESHOLDS = {
+  /** 7 % hard-decision FEC: BER ≤ 3.8e-3. */
   'hd-7': {
+    /** Name, for reports. */
     name: 'hd-7',
+    /** Hard (BER) or soft (NGMI) decision. */
     kind: 'ber',
+    /** The limit (BER at most, NGMI at least). */
     limit: 3.8e-3,
+    /** Redundancy, % of the payload. */
     overheadPercent: 7,
+    /** Where the number comes from. */
     source: 'ITU-T G.975.1 Appendix I.9 (attribution common practice)',
   },
+  /** Ideal 20 % soft-decision binary code: NGMI ≥ 1/1.2. */
   'sd-ideal-20': {
+    /** Name, for reports. */
     name: 'sd-ideal-20',
+    /** Hard (BER) or soft (NGMI) decision. */
     kind: 'ngmi',
+    /** The limit (BER at most, NGMI at least). */
     limit: 1 / 1.2,
+    /** Redundancy, % of the payload. */
     overheadPercent: 20,
+    /** Where the number comes from. */
     source: 'NGMI ≥ code rate 1/1.2 for bit-wise decoding (Alvarado et al., JLT 33(20), 2015)',
   },
+  /** Ideal 25 % soft-decision binary code: NGMI ≥ 0.8. */
   'sd-ideal-25': {
+    /** Name, for reports. */
     name: 'sd-ideal-25',
+    /** Hard (BER) or soft (NGMI) decision. */
     kind: 'ngmi',
+    /** The limit (BER at most, NGMI at least). */
     limit: 0.8,
+    /** Redundancy, % of the payload. */
     overheadPercent: 25,
+    /** Where the number comes from. */
     source: 'NGMI ≥ code rate 0.8 for bit-wise decoding (Alvarado et al., JLT 33(20), 2015)',
   },
 } as const satisfies Readonly<Record<string, FecThreshold>>;
@@ -96,6 +120,7 @@ export function fecThreshold(spec: FecPresetName | FecThreshold): FecThreshold {
 
 /** How a measurement stands against a threshold. */
 export interface FecVerdict {
+  /** The threshold judged against. */
   readonly threshold: FecThreshold;
   /**
    * 'pass' or 'fail' when the 95 % interval of the BER lies wholly on one

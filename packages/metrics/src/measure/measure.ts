@@ -49,12 +49,17 @@ export interface QualityFigures {
   readonly berCi95: Interval;
   /** True when no bit error was seen and `ber` is an upper bound. */
   readonly berIsUpperBound: boolean;
+  /** Bit errors counted. */
   readonly bitErrors: number;
+  /** Bits compared. */
   readonly bits: number;
   /** Symbol error ratio; with zero errors the upper end of `serCi95`. */
   readonly ser: number;
+  /** Clopper–Pearson 95 % interval of the SER. */
   readonly serCi95: Interval;
+  /** Symbol errors counted. */
   readonly symbolErrors: number;
+  /** Symbols compared. */
   readonly symbols: number;
   /** Data-aided rms EVM, a fraction, normalized as `evmNormalization`. */
   readonly evmRms: number;
@@ -84,25 +89,44 @@ export interface PolMeasurement extends QualityFigures {
 
 /** The result of {@link measure}: totals over both polarizations, and each polarization. */
 export interface Measurement extends QualityFigures {
+  /** The modulation measured against. */
   readonly modulation: ModulationName;
-  readonly perPol: { readonly x: PolMeasurement; readonly y: PolMeasurement };
+  /** The same figures for each polarization. */
+  readonly perPol: {
+    /** Received x polarization. */
+    readonly x: PolMeasurement;
+    /** Received y polarization. */
+    readonly y: PolMeasurement;
+  };
   /** Synchronization findings: delay, swap, rotation per polarization, conjugation. */
   readonly sync: SyncResult;
   /** (GMIₓ + GMIᵧ)·Rs, bit/s, when `symbolRate` was given; otherwise null. */
   readonly airBitsPerSecond: number | null;
+  /** How `evmRms` was normalized. */
   readonly evmNormalization: EvmNormalization;
+  /** How the GMI's bit metrics were computed (exact or max-log). */
   readonly bitMetric: BitMetric;
   /** The aligned symbols per polarization when `keepAligned` was set; otherwise null. */
-  readonly aligned: { readonly x: AlignedSymbols; readonly y: AlignedSymbols } | null;
+  readonly aligned: {
+    /** Received x with its reference. */
+    readonly x: AlignedSymbols;
+    /** Received y with its reference. */
+    readonly y: AlignedSymbols;
+  } | null;
 }
 
 /**
  * Thrown by {@link measure} when the reference was not found in the received
  * symbols: no figure is valid then. `sync` holds what was found.
+ * @example try { measure(rx, ref, 'qpsk'); } catch (e) { if (e instanceof ReferenceNotFoundError) console.log(e.sync.reason); }
  */
 export class ReferenceNotFoundError extends Error {
+  /** Always 'ReferenceNotFoundError'. */
   override readonly name = 'ReferenceNotFoundError';
-  constructor(readonly sync: SyncResult) {
+  constructor(
+    /** What the synchronization found, with its reason. */
+    readonly sync: SyncResult,
+  ) {
     super(`measure: the reference was not found: ${sync.reason}`);
   }
 }

@@ -51,13 +51,17 @@ export interface PlotData {
 export interface AnalysisFailure {
   /** Which check failed. */
   readonly check: 'equalizer' | 'reference' | 'modulation' | 'length';
+  /** What was found, in a sentence for the user. */
   readonly reason: string;
 }
 
 /** Cycle slips found against the synchronized reference, per polarization. */
 export interface SlipReport {
+  /** Slips of both polarizations. */
   readonly count: number;
+  /** Slips of x, in symbol order. */
   readonly x: readonly CycleSlip[];
+  /** Slips of y, in symbol order. */
   readonly y: readonly CycleSlip[];
 }
 
@@ -70,19 +74,33 @@ export interface SlipReport {
  * shows K near 1 instead of 1.32.
  */
 export interface ModulationFit {
+  /** K measured on the recovered symbols. */
   readonly measured: number;
+  /** K expected for the stated modulation at the measured SNR. */
   readonly expected: number;
+  /** Largest |measured − expected| accepted. */
   readonly tolerance: number;
+  /** Whether the data fit the stated modulation. */
   readonly fits: boolean;
 }
 
 /** Everything needed to run the same analysis again. */
 export interface ReproducibilityRecord {
+  /** Always 'intradyne'. */
   readonly library: string;
+  /** The library version that made the result. */
   readonly version: string;
   /** The chain with every option of every stage. */
   readonly pipeline: StageRecord;
-  readonly analysis: { readonly skipSymbols: number; readonly skipTailSymbols: number; readonly modulationTolerance: number };
+  /** The analysis options used. */
+  readonly analysis: {
+    /** Leading symbols left out. */
+    readonly skipSymbols: number;
+    /** Trailing symbols left out. */
+    readonly skipTailSymbols: number;
+    /** Tolerance of the modulation check. */
+    readonly modulationTolerance: number;
+  };
   /** SHA-256 of the input samples, rows (xi, xq, yi, yq) as little-endian float64. */
   readonly inputSha256: string;
   /** Input samples per channel. */
@@ -93,6 +111,7 @@ export interface ReproducibilityRecord {
 export interface AnalysisResult {
   /** True when every check passed and `measurement` holds valid figures. */
   readonly ok: boolean;
+  /** Which check failed and why; null when `ok`. */
   readonly failure: AnalysisFailure | null;
   /** BER, SER, EVM, SNR, Q, GMI, NGMI, MI per polarization and total; null when the analysis failed. */
   readonly measurement: Measurement | null;
@@ -106,6 +125,7 @@ export interface AnalysisResult {
   readonly implementationPenaltyDb: number | null;
   /** Es/N0 that theory needs for the measured BER, dB (Cho & Yoon 2002); null when not defined. */
   readonly theorySnrDb: number | null;
+  /** The modulation check; null when it was not reached. */
   readonly modulationFit: ModulationFit | null;
   /** What every stage of the chain reported, by slot. */
   readonly diagnostics: ReceiverDiagnostics;
@@ -115,6 +135,7 @@ export interface AnalysisResult {
   readonly recovered: DualPol | null;
   /** The report's pictures, when `plotData` was set. */
   readonly plotData: PlotData | null;
+  /** Everything needed to run the same analysis again. */
   readonly record: ReproducibilityRecord;
 }
 

@@ -59,13 +59,22 @@ export interface SyncResult {
   readonly reason: string | null;
   /** True when received x carries reference y and received y carries reference x. */
   readonly swapped: boolean;
-  readonly perPol: { readonly x: PolAlignment; readonly y: PolAlignment };
+  /** Delay, rotation and conjugation found for each received polarization. */
+  readonly perPol: {
+    /** Received x. */
+    readonly x: PolAlignment;
+    /** Received y. */
+    readonly y: PolAlignment;
+  };
   /** Nt, reference symbols per polarization. */
   readonly referenceLength: number;
   /** Received symbols per polarization used (after the skipped ones). */
   readonly symbolsUsed: number;
+  /** Leading received symbols left out. */
   readonly skipSymbols: number;
+  /** Least normalized correlation accepted at the peak, 0…1. */
   readonly minCorrelation: number;
+  /** Least ratio of the correlation peak to the floor of the other delays. */
   readonly minPeakToFloor: number;
 }
 
