@@ -76,6 +76,14 @@ for (const rule of ['cma', 'rde']) {
     twoSps,
   );
 }
+// Like for like with the C reference: CMA from the first symbol, no buffered passes over the start
+// (the default stage adapts on the first 8,192 symbols twice more before its output run).
+run(
+  '2×2 equalizer, CMA, no passes over the start (the work of the C)',
+  { taps: 15, sps: 2, rule: 'cma', passes: 0 },
+  () => butterflyEqualizer({ ...eqSettings, blindRule: 'cma', convergeOnStart: { symbols: 8192, passes: 0 } }),
+  twoSps,
+);
 run('frequency-offset estimation + removal', {}, () => frequencyOffsetRecovery(), equalized);
 run('Viterbi–Viterbi (16QAM)', { halfWindow: 16 }, () => viterbiViterbi({ modulation: '16qam', halfWindow: 16 }), freqDone);
 run(
