@@ -15,8 +15,21 @@ function write(path: string, table: Table, options: ArrowWriteOptions): void {
   writeFileAtomic(path, (append) => append(bytes), options);
 }
 
+/** Rows per record batch: a reader holds one batch at a time (2 MB for four float64 columns). */
+const BATCH_ROWS = 1 << 16;
+
+/** Float64 columns of equal length as a table of record batches of {@link BATCH_ROWS} rows. */
 function float64Table(columns: Record<string, Float64Array>): Table {
-  return makeTable(columns);
+  const names = Object.keys(columns);
+  const n = columns[names[0]].length;
+  if (n <= BATCH_ROWS) return makeTable(columns);
+  const batches = [];
+  for (let at = 0; at < n; at += BATCH_ROWS) {
+    const part: Record<string, Float64Array> = {};
+    for (const name of names) part[name] = columns[name].subarray(at, Math.min(n, at + BATCH_ROWS));
+    batches.push(...makeTable(part).batches);
+  }
+  return new Table(batches);
 }
 
 /**

@@ -87,6 +87,31 @@ describe('Arrow IPC', () => {
     expect(fromStream.map((b) => b.xi.length)).toEqual([10, 246]);
   });
 
+  it('writes long captures in record batches of 65,536 rows and reads them back batch by batch across read chunks', async () => {
+    // 200,000 rows of four float64 columns: 6.4 MB, more than one 4 MB read chunk, so batches straddle chunks.
+    const n = 200000;
+    const ramp = (k: number) => Float64Array.from({ length: n }, (_, i) => i * 1e-3 + k);
+    const channels = { xi: ramp(0), xq: ramp(1), yi: ramp(2), yq: ramp(3), sampleRate: 64e9 };
+    const dir = tempDir();
+    for (const [name, format] of [
+      ['long.arrow', 'file'],
+      ['long.arrows', 'stream'],
+    ] as const) {
+      const path = join(dir, name);
+      writeCaptureArrow(path, channels, { format });
+      const blocks = [...readArrowCapture(path)];
+      expect(blocks.map((b) => b.xi.length)).toEqual([65536, 65536, 65536, n - 3 * 65536]);
+      const whole = concatBlocks(blocks);
+      const same = (a: Float64Array, b: Float64Array) =>
+        Buffer.from(a.buffer, a.byteOffset, a.byteLength).equals(Buffer.from(b.buffer, b.byteOffset, b.byteLength));
+      for (const c of ['xi', 'xq', 'yi', 'yq'] as const) expect(same(whole[c], channels[c])).toBe(true);
+      const viaAsync = [];
+      for await (const b of readArrowCaptureAsync(path)) viaAsync.push(b);
+      expect(same(concatBlocks(viaAsync).yq, channels.yq)).toBe(true);
+      expect(readArrowMetadata(path).get('sampleRate')).toBe('64000000000');
+    }
+  });
+
   it('refuses nulls (naming column and row), NaN, non-float, missing or duplicate columns, bytes that are not Arrow', () => {
     const dir = tempDir();
     const n = 5;
