@@ -29,7 +29,15 @@ export interface FileAnalysis {
  * @throws InputError for a missing or malformed file, descriptor or reference
  */
 export function analyzeFile(path: string, settings: AnalysisSettings = {}): FileAnalysis {
-  const capture = openCapture(path, settings.overrides ?? {});
+  return analyzeOpenCapture(openCapture(path, settings.overrides ?? {}), settings);
+}
+
+/**
+ * {@link analyzeFile} on a capture already opened with {@link openCapture}
+ * (with `settings.overrides`): for a caller that needs its name first.
+ * @throws InputError for malformed data met while streaming
+ */
+export function analyzeOpenCapture(capture: CaptureDescription, settings: AnalysisSettings = {}): FileAnalysis {
   const receiver: ReceiverSettings = {
     ...settings.receiver,
     modulation: capture.modulation,

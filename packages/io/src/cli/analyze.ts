@@ -4,10 +4,12 @@ import {
   type AnalysisSettings,
   analysisToJson,
   analyzeFile,
+  analyzeOpenCapture,
   type FileAnalysis,
   readPipelineFile,
 } from '../analysis/analyze-file.js';
-import { writeSymbolsArrow } from '../arrow/arrow-write.js';
+import { writeSymbolsArrowStreaming } from '../arrow/arrow-write.js';
+import { openCapture } from '../capture/capture.js';
 import { writeJsonAtomic } from '../write/csv.js';
 import { parseCommandArgs, positiveInteger, positiveNumber } from './args.js';
 import { table } from './demo.js';
@@ -88,12 +90,21 @@ export function analyzeCommand(argv: readonly string[], out: (s: string) => void
   if (positionals.length !== 1) throw new UsageError("intradyne analyze: expected one CAPTURE (see 'intradyne analyze --help')");
   const settings = analysisSettingsFrom('analyze', values);
   err(`analyzing ${positionals[0]}\n`);
-  const analysis = analyzeFile(positionals[0], {
-    ...settings,
-    analysis: { ...settings.analysis, keepSymbols: values.out !== undefined },
-  });
+  const dir = values.out as string | undefined;
+  let analysis: FileAnalysis;
+  if (dir === undefined) analysis = analyzeFile(positionals[0], settings);
+  else {
+    // The recovered symbols go to the file as the chain delivers them: memory stays flat with the capture.
+    const capture = openCapture(positionals[0], settings.overrides ?? {});
+    mkdirSync(dir, { recursive: true });
+    analysis = writeSymbolsArrowStreaming(
+      join(dir, `${capture.name}.symbols.arrow`),
+      (add) => analyzeOpenCapture(capture, { ...settings, analysis: { ...settings.analysis, onSymbols: add } }),
+      { overwrite: true },
+    );
+  }
   const json = analysisToJson(analysis);
-  if (values.out) writeOutputs(values.out as string, analysis, json);
+  if (dir !== undefined) writeJsonAtomic(join(dir, `${analysis.capture.name}.analysis.json`), json, { overwrite: true });
   if (values.json) out(`${JSON.stringify(json)}\n`);
   else out(summary(analysis));
   if (!analysis.result.ok) {
@@ -101,14 +112,6 @@ export function analyzeCommand(argv: readonly string[], out: (s: string) => void
     return EXIT.analysisFailed;
   }
   return EXIT.done;
-}
-
-function writeOutputs(dir: string, analysis: FileAnalysis, json: Record<string, unknown>): void {
-  mkdirSync(dir, { recursive: true });
-  const name = analysis.capture.name;
-  writeJsonAtomic(join(dir, `${name}.analysis.json`), json, { overwrite: true });
-  const symbols = analysis.result.recovered;
-  if (symbols) writeSymbolsArrow(join(dir, `${name}.symbols.arrow`), symbols, { overwrite: true });
 }
 
 const fmt = (v: number | null | undefined, digits = 3): string =>

@@ -164,9 +164,9 @@ export interface StreamMeasureOptions extends Omit<MeasureOptions, 'keepAligned'
   /**
    * Received symbols, after the `skipSymbols`, on which the synchronization,
    * the gain and the noise variance are fitted (default 262,144, about
-   * 8 MB); the symbols after them are measured with these as they arrive.
-   * A stream no longer than `skipSymbols + fitSymbols` is fitted on all of
-   * its symbols, exactly as {@link measure} does.
+   * 8 MB; at least the reference's length is used); the symbols after them
+   * are measured with these as they arrive. A stream no longer than that
+   * buffer is fitted on all of its symbols, exactly as {@link measure} does.
    */
   readonly fitSymbols?: number;
 }
@@ -229,7 +229,10 @@ export class MeasurementStream {
     this.reference = reference;
     this.modulation = modulation;
     this.options = options;
-    this.leadLength = skip + fitSymbols;
+    // At least one reference period: the lead's correlation then spans the reference's wrap, so a
+    // reference holding a shorter pattern several times (a looped PRBS cut at any length) cannot
+    // align the lead at a copy of the pattern that is wrong past the wrap.
+    this.leadLength = skip + Math.max(fitSymbols, reference.x.length >> 1);
   }
 
   /**

@@ -43,7 +43,8 @@ export interface AnalyzeOptions {
   /**
    * Recovered symbols after the skipped ones on which the synchronization,
    * gains and noise variances are fitted before the rest is measured as it
-   * streams (default 262,144; see {@link MeasurementStream}).
+   * streams (default 262,144, and at least the reference's length; see
+   * {@link MeasurementStream}).
    */
   readonly fitSymbols?: number;
 }

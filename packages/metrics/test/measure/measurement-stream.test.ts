@@ -4,8 +4,19 @@ import { MeasurementStream, measure } from '../../src/measure/measure.js';
 
 // The symbols an ideal receiver gets from a simulated capture (RRC matched filter at the symbol instants),
 // with a gain and a π/2 rotation on y, as a blind receiver leaves them.
+// The pattern is PRBS11 (ITU-T O.150), so the stream repeats every 2,047 symbols and one period serves
+// as the reference, as for a looped pattern in the lab.
+const PERIOD = 2047;
+
 function received(n: number, esN0Db: number, seed: number) {
-  const cap = simulate({ seed, modulation: '16qam', symbols: n, symbolRate: 32e9, channel: { esN0Db } });
+  const cap = simulate({
+    seed,
+    modulation: '16qam',
+    symbols: n,
+    symbolRate: 32e9,
+    source: { kind: 'prbs', order: 11 },
+    channel: { esN0Db },
+  });
   const x = idealMatchedFilter(cap.truth.field.x, n, cap.symbolRate, cap.rollOff);
   const y = idealMatchedFilter(cap.truth.field.y, n, cap.symbolRate, cap.rollOff);
   for (let k = 0; k < n; k++) {
@@ -15,7 +26,8 @@ function received(n: number, esN0Db: number, seed: number) {
     x[2 * k] *= 0.6;
     x[2 * k + 1] *= 0.6;
   }
-  return { rx: { x, y }, reference: cap.reference };
+  const reference = { x: cap.reference.x.slice(0, 2 * PERIOD), y: cap.reference.y.slice(0, 2 * PERIOD) } as DualPol;
+  return { rx: { x, y }, reference, fullReference: cap.reference };
 }
 
 /** Feeds `rx` to a stream in blocks of random sizes (1 … 20,000 symbols). */
@@ -35,7 +47,7 @@ function streamed(rx: DualPol, s: MeasurementStream, seed: number) {
 
 describe('MeasurementStream', () => {
   const n = 65536;
-  const { rx, reference } = received(n, 10, 31);
+  const { rx, reference, fullReference } = received(n, 10, 31);
   const whole = measure(rx, reference, '16qam', { skipSymbols: 1000, symbolRate: 32e9 });
 
   it('equals measure() exactly when the stream fits its buffer, whatever the blocks', () => {
@@ -63,6 +75,15 @@ describe('MeasurementStream', () => {
     // (3.5e-3 and √(2/4096) = 2.2e-2 relative) move it by their squares times O(1 bit): < 1e-3 bit.
     expect(Math.abs(m.gmi - whole.gmi)).toBeLessThan(1e-3);
     expect(Math.abs(m.mi - whole.mi)).toBeLessThan(1e-3);
+  });
+
+  it('fits over at least one reference period: a looped pattern cut at any length cannot misalign the rest', () => {
+    // The whole transmitted sequence as the reference: PRBS11 repeats inside it, but not at its length
+    // (65,536 is no multiple of 2,047), so a lead shorter than it would find several equal correlation
+    // peaks, of which only one stays right past the reference's wrap.
+    const expected = measure(rx, fullReference, '16qam', { skipSymbols: 1000 });
+    const m = streamed(rx, new MeasurementStream(fullReference, '16qam', { skipSymbols: 1000, fitSymbols: 4096 }), 3);
+    expect(m).toEqual(expected);
   });
 
   it('throws what measure() throws: symbols after finish, non-finite symbols with their position', () => {
