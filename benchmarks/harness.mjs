@@ -1,14 +1,17 @@
 // Shared measuring helpers for the benchmark scripts: the median of several
 // timed runs with the slowest and fastest run, the parameters beside each
 // figure, the machine, and the results file and README table they feed.
-import { readFileSync, renameSync, writeFileSync } from 'node:fs';
+import { existsSync, readFileSync, renameSync, writeFileSync } from 'node:fs';
 import { cpus, totalmem } from 'node:os';
 import { dirname, join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 
 const HERE = dirname(fileURLToPath(import.meta.url));
-export const RESULTS_PATH = join(HERE, 'results.json');
-export const README_PATH = join(HERE, 'README.md');
+// BENCH_RESULTS_DIR sends results.json and the table elsewhere (the smoke test's temporary folder),
+// so that a trial run leaves the committed results alone.
+const OUT = process.env.BENCH_RESULTS_DIR ?? HERE;
+export const RESULTS_PATH = join(OUT, 'results.json');
+export const README_PATH = join(OUT, 'README.md');
 const START = '<!-- bench-results:start -->';
 const END = '<!-- bench-results:end -->';
 
@@ -137,7 +140,7 @@ function writeReadmeTable(all) {
     ...rows.slice(1).map(line),
   ];
   lines.push(END);
-  const text = readFileSync(README_PATH, 'utf8');
+  const text = existsSync(README_PATH) ? readFileSync(README_PATH, 'utf8') : '# Benchmarks\n';
   const a = text.indexOf(START);
   const b = text.indexOf(END);
   const next =

@@ -36,6 +36,16 @@ export interface BlindPhaseSearchOptions {
  * window sum (add the new distance, subtract the one leaving), so the cost
  * per symbol is B rotations and decisions whatever N. Symbols outside the
  * stream contribute nothing (a shorter window at both ends).
+ *
+ * The distance to the nearest point is taken per axis without a decision:
+ * in level units (points at the odd integers ±1 … ±(L − 1), L levels per
+ * axis, L = 2ᵐ), the distance of a coordinate v to the nearest level is
+ * |…||v| − L/2| − L/4| … − 1| (m folds: each maps the levels of one half
+ * onto the other, ending at the levels ±1 around 0). The folds are branch
+ * free; the clamped decision they replace mispredicted its branches on the
+ * outer levels (measured: the kernel runs about 2× faster). Distances are in
+ * level units, a constant factor 1/scale² from unit power, which changes no
+ * argmin.
  * @example const phase = runKernel(new BlindPhaseSearchKernel(constellation('16qam'), { testPhases: 32, halfWindow: 12 }), symbols.x);
  */
 export class BlindPhaseSearchKernel implements PhaseKernel {
@@ -48,9 +58,9 @@ export class BlindPhaseSearchKernel implements PhaseKernel {
   /** Distances of the window, (2N + 1) × B, one row per symbol slot. */
   private readonly ring: Float64Array;
   private readonly sums: Float64Array;
-  private readonly scale: number;
   private readonly inv: number;
-  private readonly top: number;
+  /** Fold offsets of the per-axis distance, largest first (see the class doc); 0 for an unused fold. */
+  private readonly fold: Float64Array;
   private slot = 0;
   private pushed = 0;
   private last = Number.NaN;
@@ -76,9 +86,8 @@ export class BlindPhaseSearchKernel implements PhaseKernel {
     }
     this.ring = new Float64Array(this.len * this.b);
     this.sums = new Float64Array(this.b);
-    this.scale = c.scale;
     this.inv = 1 / c.scale;
-    this.top = c.levelsPerAxis - 1;
+    this.fold = foldOffsets(c.levelsPerAxis);
   }
 
   push(re: number, im: number, present: boolean): number {
@@ -87,23 +96,17 @@ export class BlindPhaseSearchKernel implements PhaseKernel {
     const sums = this.sums;
     const cosB = this.cosB;
     const sinB = this.sinB;
-    const scale = this.scale;
     const inv = this.inv;
-    const top = this.top;
+    const h1 = this.fold[0];
+    const h2 = this.fold[1];
+    const h3 = this.fold[2];
     const b = this.b;
     if (present) {
       for (let k = 0; k < b; k++) {
-        const ur = re * cosB[k] - im * sinB[k];
-        const ui = re * sinB[k] + im * cosB[k];
-        // Per-axis slicing inline: level i = clamp(⌊(u/scale + L − 1)/2 + ½⌋, 0, L − 1).
-        // Inlined with truncation instead of Math.round: measured about 2× faster per symbol.
-        let tr = (ur * inv + top) * 0.5 + 0.5;
-        tr = tr < 0 ? 0 : tr > top ? top : tr | 0;
-        let ti = (ui * inv + top) * 0.5 + 0.5;
-        ti = ti < 0 ? 0 : ti > top ? top : ti | 0;
-        const er = ur - (2 * tr - top) * scale;
-        const ei = ui - (2 * ti - top) * scale;
-        const d = er * er + ei * ei;
+        // u = r·e^(−jφ_k) in level units (points at odd integers), folded per axis
+        const x = Math.abs(Math.abs(Math.abs(Math.abs((re * cosB[k] - im * sinB[k]) * inv) - h1) - h2) - h3);
+        const y = Math.abs(Math.abs(Math.abs(Math.abs((re * sinB[k] + im * cosB[k]) * inv) - h1) - h2) - h3);
+        const d = x * x + y * y;
         // D_b ← D_b + d_new − d_oldest
         sums[k] += d - ring[row + k];
         ring[row + k] = d;
@@ -118,7 +121,14 @@ export class BlindPhaseSearchKernel implements PhaseKernel {
     this.pushed++;
     if (this.pushed <= this.delay) return Number.NaN;
     let best = 0;
-    for (let k = 1; k < this.b; k++) if (sums[k] < sums[best]) best = k;
+    let least = sums[0];
+    for (let k = 1; k < b; k++) {
+      const v = sums[k];
+      if (v < least) {
+        least = v;
+        best = k;
+      }
+    }
     this.last = unwrapPhase(this.phases[best], this.last, QUARTER_TURN);
     return this.last;
   }
@@ -237,6 +247,22 @@ export class CoarseFinePhaseKernel implements PhaseKernel {
     this.pushed = 0;
     this.centres = 0;
   }
+}
+
+/**
+ * Offsets [h1, h2, h3] of the folds x ← |x − h| that map |v| to its
+ * distance from the nearest odd level for `levels` levels per axis: L/2,
+ * L/4 … 1, preceded by zeros (a fold by 0 leaves x ≥ 0 unchanged). Up to 8
+ * levels per axis (64QAM).
+ */
+function foldOffsets(levels: number): Float64Array {
+  const fold = new Float64Array(3);
+  let i = 2;
+  for (let h = 1; h < levels; h *= 2) {
+    if (i < 0) throw new RangeError(`blind phase search: at most 8 levels per axis are supported, ${levels} given`);
+    fold[i--] = h;
+  }
+  return fold;
 }
 
 /** Nearest level of one axis of square QAM: (2i − (L − 1))·scale, i = clamp(round((v/scale + L − 1)/2)). */

@@ -1,5 +1,5 @@
 import { type Constellation, constellation, type ModulationName } from '../modulation/constellation.js';
-import type { UpdateRule } from './update-rule.js';
+import type { RadialTargets, UpdateRule } from './update-rule.js';
 
 /**
  * The constant-modulus algorithm (Godard, "Self-recovering equalization and
@@ -21,10 +21,14 @@ export function cmaRule(modulation: ModulationName | Constellation, stepSize: nu
 
 class Cma implements UpdateRule {
   readonly name = 'cma';
+  /** One ring, no bound: e = z·(R2 − |z|²). */
+  readonly radial: RadialTargets;
   constructor(
     readonly radius2: number,
     readonly stepSize: number,
-  ) {}
+  ) {
+    this.radial = { rings2: Float64Array.of(radius2), bounds2: new Float64Array(0) };
+  }
 
   error(re: number, im: number, _pol: 0 | 1, out: Float64Array): number {
     const d = this.radius2 - (re * re + im * im);

@@ -4,7 +4,9 @@ import { DecimatedTrace } from '../pipeline/decimated-trace.js';
 import { BlockError, type JsonValue, OptionError, type Stage, type StageRecord } from '../pipeline/stage.js';
 import { type ComplexArray, complexArray } from '../signal/complex.js';
 import {
-  butterflyOutput,
+  ADAPT_STRIDE,
+  adaptRadial,
+  adaptWithRule,
   deriveOrthogonalRow,
   FILTER_XX,
   FILTER_XY,
@@ -12,12 +14,11 @@ import {
   FILTER_YY,
   rowOrthogonality,
   separationIndex,
-  updateRow,
 } from './butterfly-kernel.js';
 import { cmaRule } from './cma.js';
 import { type DdLmsRule, DEFAULT_PHASE_LOOP, ddLmsRule, type PhaseLoopGains } from './dd-lms.js';
 import { rdeRule } from './rde.js';
-import type { UpdateRule } from './update-rule.js';
+import type { RadialTargets, UpdateRule } from './update-rule.js';
 
 const NAME = 'butterfly-equalizer';
 
@@ -226,7 +227,8 @@ export interface EqualizerDiagnostics {
 
 /** Most points the equalizer's error trace keeps (bounded memory on any capture length). */
 export const EQUALIZER_TRACE_POINTS = 2048;
-
+/** Longest segment of the hot loop, symbols (its scratch stays in the L1 cache). */
+const SEGMENT_SYMBOLS = 256;
 /** Symbols between singularity checks after pre-convergence. */
 const CHECK_EVERY = 1024;
 /** In-band frequencies of the singularity test, and the band (fraction of fs/2): |f| ≤ 0.4·Rs at 2 Sa/symbol. */
@@ -320,6 +322,8 @@ class ButterflyEqualizer implements Stage<'twoSps', 'symbols', EqualizerDiagnost
   private readonly z = new Float64Array(4);
   private readonly ex = new Float64Array(2);
   private readonly ey = new Float64Array(2);
+  /** Scratch of one segment of the hot loop: {@link ADAPT_STRIDE} numbers per symbol. */
+  private readonly segment = new Float64Array(ADAPT_STRIDE * SEGMENT_SYMBOLS);
 
   // Stream state.
   private collecting!: boolean;
@@ -600,6 +604,12 @@ class ButterflyEqualizer implements Stage<'twoSps', 'symbols', EqualizerDiagnost
    * The hot loop: `count` symbols, the first with its newest window sample at
    * index `newest0` of the delay lines, the next ones 2 samples later. Writes
    * the outputs when `outX`/`outY` are given (the output run), adapts always.
+   *
+   * The symbols go in segments that end where the schedule changes rule or
+   * something is due (a trace point, a singularity check, the start of the
+   * DD-LMS acquisition window); each segment runs in the kernel of its rule
+   * ({@link adaptRadial} for CMA and RDE, {@link adaptWithRule} otherwise)
+   * and its outputs and costs are then taken from the scratch.
    */
   private run(
     ux: Float64Array,
@@ -609,72 +619,120 @@ class ButterflyEqualizer implements Stage<'twoSps', 'symbols', EqualizerDiagnost
     outX: Float64Array | null,
     outY: Float64Array | null,
   ): void {
+    if (count <= 0) return;
     const o = this.o;
     const L = this.L;
     const taps = this.taps;
-    const z = this.z;
-    const ex = this.ex;
-    const ey = this.ey;
-    const acc = this.acc;
+    const seg = this.segment;
+    const maxSeg = seg.length / ADAPT_STRIDE;
     const dd = this.dd;
     const ddStart = o.dd ? o.dd.startSymbol : Number.POSITIVE_INFINITY;
-    for (let s = 0; s < count; s++) {
-      const newest = newest0 + 2 * s;
-      butterflyOutput(taps, L, ux, uy, newest, z);
-      const xr = z[0];
-      const xi = z[1];
-      const yr = z[2];
-      const yi = z[3];
-      const a = this.adapted;
-      const pre = a < o.pre;
-      const rule = pre ? this.preRule : a >= ddStart && dd ? dd : this.blind;
-      const costX = rule.error(xr, xi, 0, ex);
-      const costY = rule.error(yr, yi, 1, ey);
-      if (outX && outY) {
-        outX[2 * s] = xr;
-        outX[2 * s + 1] = xi;
-        outY[2 * s] = yr;
-        outY[2 * s + 1] = yi;
-        const p = this.windowPos;
-        this.windowX[p] = xr * xr + xi * xi;
-        this.windowY[p] = yr * yr + yi * yi;
-        this.windowPos = p + 1 === o.window ? 0 : p + 1;
-        if (this.windowFill < o.window) this.windowFill++;
+    const acquireFrom = ddStart - ACQUIRE_SYMBOLS;
+    const pre = o.pre;
+    const blind = this.blind;
+    const preRadial = this.preRule.radial as RadialTargets;
+    const windowX = this.windowX;
+    const windowY = this.windowY;
+    const window = o.window;
+    const acc = this.acc;
+    let a = this.adapted;
+    // Next adapted-symbol counts at which a trace point is due and the taps are checked for singularity.
+    let nextTrace = (Math.floor(a / o.traceEvery) + 1) * o.traceEvery;
+    let nextCheck = a < pre ? pre : pre + (Math.floor((a - pre) / CHECK_EVERY) + 1) * CHECK_EVERY;
+    for (let s = 0; s < count; ) {
+      let end = Math.min(a + count - s, a + maxSeg, nextTrace, nextCheck);
+      if (a < pre) end = Math.min(end, pre);
+      if (a < acquireFrom) end = Math.min(end, acquireFrom);
+      if (a < ddStart) end = Math.min(end, ddStart);
+      const n = end - a;
+      const first = newest0 + 2 * s;
+      if (a < pre) {
+        adaptRadial(
+          taps,
+          L,
+          ux,
+          uy,
+          first,
+          n,
+          preRadial.rings2,
+          preRadial.bounds2,
+          o.mu.preConvergence,
+          this.preDecay,
+          this.preHold,
+          a,
+          o.updateEvery,
+          o.orthogonalStart,
+          seg,
+        );
+      } else if (dd !== null && a >= ddStart) {
+        adaptWithRule(taps, L, ux, uy, first, n, dd, dd.stepSize, a, o.updateEvery, this.z, this.ex, this.ey, seg);
+      } else if (blind.radial) {
+        adaptRadial(
+          taps,
+          L,
+          ux,
+          uy,
+          first,
+          n,
+          blind.radial.rings2,
+          blind.radial.bounds2,
+          blind.stepSize,
+          1,
+          Number.POSITIVE_INFINITY,
+          a,
+          o.updateEvery,
+          false,
+          seg,
+        );
+      } else {
+        adaptWithRule(taps, L, ux, uy, first, n, blind, blind.stepSize, a, o.updateEvery, this.z, this.ex, this.ey, seg);
       }
-      if (dd && a < ddStart && a >= ddStart - ACQUIRE_SYMBOLS) {
-        dd.observe(xr, xi, 0);
-        dd.observe(yr, yi, 1);
+      const observe = dd !== null && a >= acquireFrom && a < ddStart;
+      for (let i = 0, k = 0; i < n; i++, k += ADAPT_STRIDE) {
+        const xr = seg[k];
+        const xi = seg[k + 1];
+        const yr = seg[k + 2];
+        const yi = seg[k + 3];
+        const px = xr * xr + xi * xi;
+        const py = yr * yr + yi * yi;
+        if (outX !== null && outY !== null) {
+          const j = 2 * (s + i);
+          outX[j] = xr;
+          outX[j + 1] = xi;
+          outY[j] = yr;
+          outY[j + 1] = yi;
+          const p = this.windowPos;
+          windowX[p] = px;
+          windowY[p] = py;
+          this.windowPos = p + 1 === window ? 0 : p + 1;
+          if (this.windowFill < window) this.windowFill++;
+        }
+        if (observe) {
+          (dd as DdLmsRule).observe(xr, xi, 0);
+          (dd as DdLmsRule).observe(yr, yi, 1);
+        }
+        acc[0] += seg[k + 4];
+        acc[1] += seg[k + 5];
+        acc[2] += px;
+        acc[3] += px * px;
+        acc[4] += py;
+        acc[5] += py * py;
       }
-      if (a % o.updateEvery === 0) {
-        // Pre-convergence holds μ_pre over its first half (fast separation), then anneals it
-        // geometrically to μ_cma over the second half (a quiet start for the rule after it).
-        const mu = pre
-          ? a < this.preHold
-            ? o.mu.preConvergence
-            : o.mu.preConvergence * this.preDecay ** (a - this.preHold)
-          : rule.stepSize;
-        updateRow(taps, L, ux, uy, newest, 0, ex[0], ex[1], mu);
-        if (pre && o.orthogonalStart) deriveOrthogonalRow(taps, L);
-        else updateRow(taps, L, ux, uy, newest, 1, ey[0], ey[1], mu);
+      a = end;
+      s += n;
+      this.adapted = a;
+      if (a === nextTrace) {
+        this.tracePoint();
+        nextTrace += o.traceEvery;
       }
-      const px = xr * xr + xi * xi;
-      const py = yr * yr + yi * yi;
-      acc[0] += costX;
-      acc[1] += costY;
-      acc[2] += px;
-      acc[3] += px * px;
-      acc[4] += py;
-      acc[5] += py * py;
-      const next = a + 1;
-      this.adapted = next;
-      if (next % o.traceEvery === 0) this.tracePoint();
-      if (dd && next === ddStart) dd.acquire();
-      if (o.restart && next >= o.pre && (next - o.pre) % CHECK_EVERY === 0) this.checkSingularity();
+      if (dd !== null && a === ddStart) dd.acquire();
+      if (a === nextCheck) {
+        if (o.restart) this.checkSingularity();
+        nextCheck += CHECK_EVERY;
+      }
     }
-    if (count > 0) {
-      const a = this.adapted - 1;
-      this.currentRule = a < o.pre ? 'cma' : a >= ddStart ? 'dd-lms' : this.blind.name;
-    }
+    const last = a - 1;
+    this.currentRule = last < pre ? 'cma' : last >= ddStart ? 'dd-lms' : blind.name;
   }
 
   /** Carries the DD-LMS loop back to the capture's start if it is running. */

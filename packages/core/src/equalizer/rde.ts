@@ -1,5 +1,5 @@
 import { type Constellation, constellation, type ModulationName } from '../modulation/constellation.js';
-import type { UpdateRule } from './update-rule.js';
+import type { RadialTargets, UpdateRule } from './update-rule.js';
 
 /**
  * Radius-directed equalization (Fatadin, Ives & Savory, "Blind equalization
@@ -24,6 +24,7 @@ class Rde implements UpdateRule {
   private readonly rings: Float64Array;
   /** Squared midpoints between neighbouring radii: |z|² above bound[i] is nearer ring i + 1. */
   private readonly bounds: Float64Array;
+  readonly radial: RadialTargets;
 
   constructor(
     rings2: readonly number[],
@@ -35,6 +36,7 @@ class Rde implements UpdateRule {
       const mid = 0.5 * (Math.sqrt(rings2[i]) + Math.sqrt(rings2[i + 1]));
       this.bounds[i] = mid * mid;
     }
+    this.radial = { rings2: this.rings, bounds2: this.bounds };
   }
 
   error(re: number, im: number, _pol: 0 | 1, out: Float64Array): number {

@@ -20,6 +20,27 @@ export interface UpdateRule {
    * Called once per symbol and polarization; must not allocate.
    */
   error(re: number, im: number, pol: 0 | 1, out: Float64Array): number;
+  /**
+   * For a rule of the radius-directed form e = z·(Rᵢ² − |z|²), the ring i
+   * chosen from |z|² alone (CMA: one ring; RDE: the nearest ring): its rings
+   * and the bounds between them. The equalizer then evaluates the rule inside
+   * its fused per-symbol kernel instead of calling `error` (a call through an
+   * interface per symbol and polarization costs more than the rule itself);
+   * it must give the same e as `error`. Absent for other rules.
+   */
+  readonly radial?: RadialTargets;
   /** Forgets any state (a rule with none does nothing). */
   reset(): void;
+}
+
+/**
+ * Rings of a radius-directed rule: e = z·(rings2[i] − |z|²) with i the
+ * number of `bounds2` entries that |z|² exceeds (bounds2 ascending, one
+ * fewer than rings2).
+ */
+export interface RadialTargets {
+  /** Squared target radii Rᵢ², ascending. */
+  readonly rings2: Float64Array;
+  /** Squared boundaries between neighbouring rings: |z|² above bounds2[i] selects ring i + 1 or beyond. */
+  readonly bounds2: Float64Array;
 }

@@ -1,5 +1,8 @@
 import { describe, expect, it } from 'vitest';
 import {
+  ADAPT_STRIDE,
+  adaptRadial,
+  adaptWithRule,
   butterflyOutput,
   cmaRule,
   constellation,
@@ -163,4 +166,76 @@ describe('update rules', () => {
       expect(Math.abs(e[1])).toBe(0);
     }
   });
+});
+
+describe('adaptRadial and adaptWithRule (the fused loops of the stage)', () => {
+  // The reference is the unfused composition: butterflyOutput, the rule's error(), updateRow per row.
+  // The fused kernels evaluate the same expressions in the same order, so they must agree exactly.
+  const count = 40;
+  const rng = new Rng(7);
+  const ux = rng.fillGaussian(new Float64Array(2 * (2 * count + L)));
+  const uy = rng.fillGaussian(new Float64Array(2 * (2 * count + L)));
+  const newest0 = L - 1;
+
+  function unfused(rule: ReturnType<typeof rdeRule>, mu: (a: number) => number, updateEvery: number) {
+    const taps = randomTaps(3).map((v) => 0.1 * v);
+    const out = new Float64Array(ADAPT_STRIDE * count);
+    const z = new Float64Array(4);
+    const ex = new Float64Array(2);
+    const ey = new Float64Array(2);
+    for (let s = 0; s < count; s++) {
+      const n = newest0 + 2 * s;
+      butterflyOutput(taps, L, ux, uy, n, z);
+      out.set(z, ADAPT_STRIDE * s);
+      out[ADAPT_STRIDE * s + 4] = rule.error(z[0], z[1], 0, ex);
+      out[ADAPT_STRIDE * s + 5] = rule.error(z[2], z[3], 1, ey);
+      if (s % updateEvery !== 0) continue;
+      updateRow(taps, L, ux, uy, n, 0, ex[0], ex[1], mu(s));
+      updateRow(taps, L, ux, uy, n, 1, ey[0], ey[1], mu(s));
+    }
+    return { taps, out };
+  }
+
+  for (const [name, rule] of [
+    ['CMA', cmaRule('16qam', 1e-2)],
+    ['RDE', rdeRule('16qam', 1e-2)],
+  ] as const) {
+    it(`${name}: outputs, costs and taps equal the unfused kernels exactly, with an annealed step, updating every symbol or every 2nd`, () => {
+      const hold = 10;
+      const decay = 0.9;
+      const mu = (a: number) => (a < hold ? 1e-2 : 1e-2 * decay ** (a - hold));
+      for (const every of [1, 2]) {
+        const ref = unfused(rule, mu, every);
+        const taps = randomTaps(3).map((v) => 0.1 * v);
+        const out = new Float64Array(ADAPT_STRIDE * count);
+        const r = rule.radial!;
+        adaptRadial(taps, L, ux, uy, newest0, count, r.rings2, r.bounds2, 1e-2, decay, hold, 0, every, false, out);
+        expect(Array.from(out)).toEqual(Array.from(ref.out));
+        expect(Array.from(taps)).toEqual(Array.from(ref.taps));
+      }
+      const taps2 = randomTaps(3).map((v) => 0.1 * v);
+      const out2 = new Float64Array(ADAPT_STRIDE * count);
+      const mu2 = (a: number) => (a < hold ? 1e-2 : 1e-2 * decay ** (a - hold));
+      // adaptWithRule calls error() and takes a fixed μ: equal to the reference with that μ.
+      const ref2 = unfused(rule, () => mu2(0), 2);
+      adaptWithRule(
+        taps2,
+        L,
+        ux,
+        uy,
+        newest0,
+        count,
+        rule,
+        1e-2,
+        0,
+        2,
+        new Float64Array(4),
+        new Float64Array(2),
+        new Float64Array(2),
+        out2,
+      );
+      expect(Array.from(out2)).toEqual(Array.from(ref2.out));
+      expect(Array.from(taps2)).toEqual(Array.from(ref2.taps));
+    });
+  }
 });

@@ -33,7 +33,15 @@ export interface FileAnalysis {
  * @example const { result } = analyzeFile('run-07.csv', { overrides: { modulation: '16qam' } }); if (result.ok) console.log(result.measurement?.ber);
  */
 export function analyzeFile(path: string, settings: AnalysisSettings = {}): FileAnalysis {
-  const capture = openCapture(path, settings.overrides ?? {});
+  return analyzeOpenCapture(openCapture(path, settings.overrides ?? {}), settings);
+}
+
+/**
+ * {@link analyzeFile} on a capture already opened with {@link openCapture}
+ * (with `settings.overrides`): for a caller that needs its name first.
+ * @throws InputError for malformed data met while streaming
+ */
+export function analyzeOpenCapture(capture: CaptureDescription, settings: AnalysisSettings = {}): FileAnalysis {
   const receiver: ReceiverSettings = {
     ...settings.receiver,
     modulation: capture.modulation,

@@ -1,9 +1,17 @@
-import { readFileSync } from 'node:fs';
+import { closeSync, fstatSync, readSync } from 'node:fs';
 import { CHANNEL_NAMES, type ChannelBlock, type ChannelName, concatBlocks, type DualPol } from '@intradyne/core';
-import { type RecordBatch, RecordBatchReader, type Schema, Type, type Vector } from 'apache-arrow';
+import {
+  MessageReader,
+  type RecordBatch,
+  RecordBatchReader,
+  RecordBatchStreamWriter,
+  type Schema,
+  Type,
+  type Vector,
+} from 'apache-arrow';
 import { checkReferenceLength, dualPolFromColumns, REFERENCE_COLUMNS } from '../capture/reference.js';
 import { InputError } from '../errors/input-error.js';
-import { openForReadingAsync } from '../load/open-file.js';
+import { openForReading, openForReadingAsync } from '../load/open-file.js';
 
 /** Options of the Arrow capture readers ({@link readArrowCapture}, {@link loadArrowCapture}). */
 export interface ArrowCaptureOptions {
@@ -122,18 +130,73 @@ class ArrowBlocks {
   }
 }
 
-function openSyncReader(path: string): RecordBatchReader {
-  let bytes: Uint8Array;
+/** Bytes per synchronous read of an Arrow file. */
+const CHUNK_BYTES = 1 << 22;
+/** An IPC file starts with "ARROW1" padded to 8 bytes and ends with its footer, the footer's length (int32) and "ARROW1". */
+const FILE_MAGIC = 'ARROW1';
+const FILE_HEAD = 8;
+const FILE_TAIL = 4 + FILE_MAGIC.length;
+/** Arrow's MessageHeader value of a schema message. */
+const SCHEMA_MESSAGE = 1;
+
+/**
+ * Opens an Arrow IPC file or stream for synchronous reading, record batch by
+ * record batch, without holding the whole file: the bytes come in chunks
+ * from the descriptor. apache-arrow's synchronous reader of the IPC file
+ * format wants every byte in memory, so a file is read as the stream its
+ * body is (the messages between the leading magic and the footer, ended by
+ * the end-of-stream marker), with the schema taken from the footer when the
+ * writer left it out of the body (apache-arrow's own file writer does).
+ * `close` releases the file.
+ * @throws InputError when the file cannot be opened or its bytes are not Arrow IPC
+ */
+function openSyncReader(path: string): { reader: RecordBatchReader; close: () => void } {
+  const fd = openForReading(path);
+  let closed = false;
+  const close = () => {
+    if (!closed) closeSync(fd);
+    closed = true;
+  };
+  const at = (position: number, length: number): Uint8Array => {
+    const b = Buffer.allocUnsafe(Math.max(0, length));
+    const n = readSync(fd, b, 0, b.length, position);
+    return b.subarray(0, n);
+  };
   try {
-    bytes = readFileSync(path);
-  } catch (e) {
-    throw new InputError({ file: path }, 'file', 'a readable file', (e as NodeJS.ErrnoException).code ?? String(e));
-  }
-  try {
-    const reader = RecordBatchReader.from(bytes);
+    const size = fstatSync(fd).size;
+    const head = at(0, FILE_HEAD);
+    const isFile = head.length === FILE_HEAD && Buffer.from(head).toString('latin1', 0, FILE_MAGIC.length) === FILE_MAGIC;
+    let prefix: Uint8Array | null = null;
+    if (isFile) {
+      // The schema from the footer alone (magic + footer + length + magic), then the body's first message.
+      const footerLength = Buffer.from(at(size - FILE_TAIL, 4)).readInt32LE(0);
+      const footer = at(size - FILE_TAIL - footerLength, footerLength + FILE_TAIL);
+      const tail = new Uint8Array(FILE_HEAD + footer.length);
+      tail.set(head);
+      tail.set(footer, FILE_HEAD);
+      const schema = RecordBatchReader.from(tail).open().schema;
+      const first = new MessageReader(at(FILE_HEAD, CHUNK_BYTES)).readMessage();
+      if (first?.headerType !== SCHEMA_MESSAGE) {
+        const w = new RecordBatchStreamWriter();
+        w.reset(undefined, schema);
+        prefix = w.toUint8Array(true);
+      }
+    }
+    function* chunks(): Generator<Uint8Array> {
+      if (prefix) yield prefix;
+      for (let position = isFile ? FILE_HEAD : 0; ; ) {
+        const chunk = at(position, CHUNK_BYTES);
+        if (chunk.length === 0) return;
+        position += chunk.length;
+        yield chunk;
+      }
+    }
+    const reader = RecordBatchReader.from(chunks());
     reader.open();
-    return reader;
+    return { reader, close };
   } catch (e) {
+    close();
+    if (e instanceof InputError) throw e;
     throw new InputError(
       { file: path },
       'Arrow IPC',
@@ -161,18 +224,23 @@ function* batchesOf(reader: RecordBatchReader, file: string): Generator<RecordBa
  * Reads an Arrow IPC capture (file or stream format, detected from the
  * bytes) batch by batch: float32 or float64 columns `xi, xq, yi, yq`
  * (case-insensitive, or mapped), one `channels` block per record batch.
- * This synchronous form reads the file's bytes into memory first; for large
- * files use {@link readArrowCaptureAsync}, which holds one batch at a time.
+ * Both this synchronous form and {@link readArrowCaptureAsync} hold one
+ * batch at a time (plus a read chunk of 4 MB here), so memory follows the
+ * writer's batch size, not the file's.
  * @throws InputError for a missing, duplicate or non-float column, a null
  *   (naming the column and the 1-based row), NaN or Infinity, no rows, no
  *   sample rate, or bytes that are not Arrow IPC
  * @example for (const block of readArrowCapture('run-07.arrow')) chain.process(block);
  */
 export function* readArrowCapture(path: string, options: ArrowCaptureOptions = {}): Generator<ChannelBlock, void, undefined> {
-  const reader = openSyncReader(path);
-  const blocks = new ArrowBlocks(path, options);
-  for (const batch of batchesOf(reader, path)) yield blocks.block(batch);
-  blocks.finish();
+  const { reader, close } = openSyncReader(path);
+  try {
+    const blocks = new ArrowBlocks(path, options);
+    for (const batch of batchesOf(reader, path)) yield blocks.block(batch);
+    blocks.finish();
+  } finally {
+    close();
+  }
 }
 
 /**
@@ -230,7 +298,12 @@ export function loadArrowCapture(path: string, options: ArrowCaptureOptions = {}
  * @example readArrowMetadata('run-07.arrow').get('symbolRate') // the text stored, e.g. '32e9'
  */
 export function readArrowMetadata(path: string): ReadonlyMap<string, string> {
-  return openSyncReader(path).schema.metadata;
+  const { reader, close } = openSyncReader(path);
+  try {
+    return reader.schema.metadata;
+  } finally {
+    close();
+  }
 }
 
 /**
@@ -239,17 +312,21 @@ export function readArrowMetadata(path: string): ReadonlyMap<string, string> {
  * @example const ref = loadReferenceArrow('tx-symbols.arrow'); ref.x.length / 2; // symbols
  */
 export function loadReferenceArrow(path: string): DualPol {
-  const reader = openSyncReader(path);
+  const { reader, close } = openSyncReader(path);
   const parts: Float64Array[][] = [[], [], [], []];
   let indexes: number[] | null = null;
   let row = 0;
-  for (const batch of batchesOf(reader, path)) {
-    indexes ??= columnIndexes(batch.schema, REFERENCE_COLUMNS, path);
-    for (const [s, i] of indexes.entries())
-      parts[s].push(columnValues(batch.getChildAt(i) as Vector, REFERENCE_COLUMNS[s], row, path));
-    row += batch.numRows;
+  try {
+    for (const batch of batchesOf(reader, path)) {
+      indexes ??= columnIndexes(batch.schema, REFERENCE_COLUMNS, path);
+      for (const [s, i] of indexes.entries())
+        parts[s].push(columnValues(batch.getChildAt(i) as Vector, REFERENCE_COLUMNS[s], row, path));
+      row += batch.numRows;
+    }
+    if (indexes === null) columnIndexes(reader.schema, REFERENCE_COLUMNS, path);
+  } finally {
+    close();
   }
-  if (indexes === null) columnIndexes(reader.schema, REFERENCE_COLUMNS, path);
   const joined = parts.map((p) => {
     const out = new Float64Array(row);
     let at = 0;

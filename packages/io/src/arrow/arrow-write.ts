@@ -1,5 +1,16 @@
 import type { DualPol, ScopeChannels } from '@intradyne/core';
-import { Float64, makeTable, Table, tableToIPC, Utf8, type Vector, vectorFromArray } from 'apache-arrow';
+import {
+  AsyncByteQueue,
+  Float64,
+  makeTable,
+  RecordBatchFileWriter,
+  RecordBatchStreamWriter,
+  Table,
+  tableToIPC,
+  Utf8,
+  type Vector,
+  vectorFromArray,
+} from 'apache-arrow';
 import { type AtomicWriteOptions, writeFileAtomic } from '../write/atomic.js';
 
 /** Options of the Arrow writers. */
@@ -16,8 +27,21 @@ function write(path: string, table: Table, options: ArrowWriteOptions): void {
   writeFileAtomic(path, (append) => append(bytes), options);
 }
 
+/** Rows per record batch: a reader holds one batch at a time (2 MB for four float64 columns). */
+const BATCH_ROWS = 1 << 16;
+
+/** Float64 columns of equal length as a table of record batches of {@link BATCH_ROWS} rows. */
 function float64Table(columns: Record<string, Float64Array>): Table {
-  return makeTable(columns);
+  const names = Object.keys(columns);
+  const n = columns[names[0]].length;
+  if (n <= BATCH_ROWS) return makeTable(columns);
+  const batches = [];
+  for (let at = 0; at < n; at += BATCH_ROWS) {
+    const part: Record<string, Float64Array> = {};
+    for (const name of names) part[name] = columns[name].subarray(at, Math.min(n, at + BATCH_ROWS));
+    batches.push(...makeTable(part).batches);
+  }
+  return new Table(batches);
 }
 
 /**
@@ -61,6 +85,66 @@ export function writeSymbolsArrow(path: string, symbols: DualPol, options: Arrow
   const [x_re, x_im] = parts(symbols.x);
   const [y_re, y_im] = parts(symbols.y);
   write(path, float64Table({ x_re, x_im, y_re, y_im }), options);
+}
+
+/**
+ * Writes dual-polarization symbols as they are produced, in the layout of
+ * {@link writeSymbolsArrow}, without holding them: `produce` is called with
+ * an `add` function to call with each block of symbols in order; every
+ * block becomes record batches of at most 65,536 rows appended to a
+ * temporary file, which replaces `path` once `produce` returns (atomic; if
+ * `produce` throws, nothing is written). Returns what `produce` returns.
+ * @throws RangeError when a block's x and y differ in length; OutputExistsError as {@link writeCaptureArrow}
+ * @example const result = writeSymbolsArrowStreaming(path, (add) => analyzeCapture(blocks, s, ref, { onSymbols: add }));
+ */
+export function writeSymbolsArrowStreaming<T>(
+  path: string,
+  produce: (add: (symbols: DualPol) => void) => T,
+  options: AtomicWriteOptions & { readonly format?: 'file' | 'stream' } = {},
+): T {
+  let result: T | undefined;
+  writeFileAtomic(
+    path,
+    (append) => {
+      const writer = options.format === 'stream' ? new RecordBatchStreamWriter() : new RecordBatchFileWriter();
+      writer.reset(new AppendingSink(append));
+      let written = false;
+      const add = (symbols: DualPol) => {
+        if (symbols.x.length !== symbols.y.length) {
+          throw new RangeError(
+            `writeSymbolsArrowStreaming: x has ${symbols.x.length >> 1} symbols, y has ${symbols.y.length >> 1}`,
+          );
+        }
+        // An empty block is skipped: its batch's schema would differ (no rows), which ends the writer.
+        if (symbols.x.length === 0) return;
+        const [x_re, x_im] = parts(symbols.x);
+        const [y_re, y_im] = parts(symbols.y);
+        for (const batch of float64Table({ x_re, x_im, y_re, y_im }).batches) writer.write(batch);
+        written = true;
+      };
+      result = produce(add);
+      // No symbols: an empty table still gives the file its schema.
+      if (!written) {
+        const none = new Float64Array(0);
+        writer.write(float64Table({ x_re: none, x_im: none, y_re: none, y_im: none }));
+      }
+      writer.close();
+    },
+    options,
+  );
+  return result as T;
+}
+
+/** apache-arrow's writer sink, appending each chunk to the file as it is written. */
+class AppendingSink extends AsyncByteQueue {
+  constructor(private readonly append: (chunk: Uint8Array) => void) {
+    super();
+  }
+
+  override write(value: ArrayBufferView | string): void {
+    if (typeof value === 'string') this.append(Buffer.from(value));
+    else this.append(new Uint8Array(value.buffer, value.byteOffset, value.byteLength));
+  }
 }
 
 /** A row of a results table: named numbers, strings or missing values. */

@@ -4,10 +4,12 @@ import {
   type AnalysisSettings,
   analysisToJson,
   analyzeFile,
+  analyzeOpenCapture,
   type FileAnalysis,
   readPipelineFile,
 } from '../analysis/analyze-file.js';
-import { writeSymbolsArrow } from '../arrow/arrow-write.js';
+import { writeSymbolsArrowStreaming } from '../arrow/arrow-write.js';
+import { openCapture } from '../capture/capture.js';
 import { analysisReport } from '../report/analysis-report.js';
 import { writeReport } from '../report/write-report.js';
 import { writeJsonAtomic } from '../write/csv.js';
@@ -93,12 +95,29 @@ export function analyzeCommand(argv: readonly string[], out: (s: string) => void
   if (positionals.length !== 1) throw new UsageError("intradyne analyze: expected one CAPTURE (see 'intradyne analyze --help')");
   const settings = analysisSettingsFrom('analyze', values);
   err(`analyzing ${positionals[0]}\n`);
-  const analysis = analyzeFile(positionals[0], {
+  const dir = values.out as string | undefined;
+  const analysisSettings = {
     ...settings,
-    analysis: { ...settings.analysis, keepSymbols: values.out !== undefined, plotData: values.report !== undefined },
-  });
+    analysis: { ...settings.analysis, plotData: values.report !== undefined },
+  };
+  let analysis: FileAnalysis;
+  if (dir === undefined) analysis = analyzeFile(positionals[0], analysisSettings);
+  else {
+    // The recovered symbols go to the file as the chain delivers them: memory stays flat with the capture.
+    const capture = openCapture(positionals[0], settings.overrides ?? {});
+    mkdirSync(dir, { recursive: true });
+    analysis = writeSymbolsArrowStreaming(
+      join(dir, `${capture.name}.symbols.arrow`),
+      (add) =>
+        analyzeOpenCapture(capture, {
+          ...analysisSettings,
+          analysis: { ...analysisSettings.analysis, onSymbols: add },
+        }),
+      { overwrite: true },
+    );
+  }
   const json = analysisToJson(analysis);
-  if (values.out) writeOutputs(values.out as string, analysis, json);
+  if (dir !== undefined) writeJsonAtomic(join(dir, `${analysis.capture.name}.analysis.json`), json, { overwrite: true });
   if (values.report) {
     const c = analysis.capture;
     const inputs = [c.dataPath, c.referencePath, ...(c.descriptorPath ? [c.descriptorPath] : [])];
@@ -112,14 +131,6 @@ export function analyzeCommand(argv: readonly string[], out: (s: string) => void
     return EXIT.analysisFailed;
   }
   return EXIT.done;
-}
-
-function writeOutputs(dir: string, analysis: FileAnalysis, json: Record<string, unknown>): void {
-  mkdirSync(dir, { recursive: true });
-  const name = analysis.capture.name;
-  writeJsonAtomic(join(dir, `${name}.analysis.json`), json, { overwrite: true });
-  const symbols = analysis.result.recovered;
-  if (symbols) writeSymbolsArrow(join(dir, `${name}.symbols.arrow`), symbols, { overwrite: true });
 }
 
 const fmt = (v: number | null | undefined, digits = 3): string =>

@@ -1,6 +1,7 @@
 import {
   type ComplexArray,
   type Constellation,
+  type CycleSlip,
   complexArray,
   constellation,
   type DualPol,
@@ -8,12 +9,13 @@ import {
   MODULATIONS,
   type ModulationName,
   OptionError,
+  ReferenceSlipDetector,
 } from '@intradyne/core';
 import type { Interval } from '../counting/clopper-pearson.js';
-import { countErrors, errorRatio } from '../counting/error-count.js';
+import { countErrors, type ErrorCount, errorRatio } from '../counting/error-count.js';
 import { referenceLabels } from '../counting/reference-labels.js';
 import { airBitsPerSecond } from '../information/air.js';
-import { type BitMetric, informationEstimate } from '../information/bit-metrics.js';
+import { type BitMetric, InformationAccumulator } from '../information/bit-metrics.js';
 import { constellationPower, type EvmNormalization, errorPower } from '../quality/evm.js';
 import { leastSquaresGain } from '../quality/gain.js';
 import { qFactorDb, toDb } from '../quality/snr.js';
@@ -85,6 +87,12 @@ export interface PolMeasurement extends QualityFigures {
   readonly noiseVariance: number;
   /** Synchronization findings of this polarization. */
   readonly alignment: PolAlignment;
+  /**
+   * Normalized fourth moment E|z|⁴/(E|z|²)² of the aligned, normalized
+   * received symbols (1 for QPSK, 1.32 for 16QAM without noise; Gaussian
+   * noise pulls it towards 2).
+   */
+  readonly fourthMoment: number;
 }
 
 /** The result of {@link measure}: totals over both polarizations, and each polarization. */
@@ -159,6 +167,195 @@ export function measure(
   modulation: ModulationName,
   options: MeasureOptions = {},
 ): Measurement {
+  const o = validate(modulation, options);
+  for (const p of ['x', 'y'] as const) {
+    requireFinite(received[p], `received ${p}`, 0);
+    requireFinite(reference[p], `reference ${p}`, 0);
+  }
+  const fit = fitChannel(received, reference, modulation, options);
+  const tally = {
+    x: new PolarizationTally(fit.c, fit.x, o.bitMetric, false),
+    y: new PolarizationTally(fit.c, fit.y, o.bitMetric, false),
+  };
+  tally.x.add(fit.x.aligned);
+  tally.y.add(fit.y.aligned);
+  const m = assemble(fit, tally, modulation, o);
+  return options.keepAligned ? { ...m, aligned: { x: fit.x.aligned, y: fit.y.aligned } } : m;
+}
+
+/** Options of {@link MeasurementStream}: those of {@link measure} but `keepAligned`, and the fitting span. */
+export interface StreamMeasureOptions extends Omit<MeasureOptions, 'keepAligned'> {
+  /**
+   * Received symbols, after the `skipSymbols`, on which the synchronization,
+   * the gain and the noise variance are fitted (default 262,144, about
+   * 8 MB; at least the reference's length is used); the symbols after them
+   * are measured with these as they arrive. A stream no longer than that
+   * buffer is fitted on all of its symbols, exactly as {@link measure} does.
+   */
+  readonly fitSymbols?: number;
+}
+
+/** Default {@link StreamMeasureOptions.fitSymbols}: 2^18 symbols. */
+export const DEFAULT_FIT_SYMBOLS = 2 ** 18;
+
+/**
+ * {@link measure} on a stream of received symbols in bounded memory: the
+ * first `skipSymbols + fitSymbols` symbols are buffered; on them the
+ * stream is synchronized with the reference and each polarization's gain ĝ
+ * and Gaussian noise variance σ̂² are fitted as {@link measure} does; then
+ * every symbol from `skipSymbols` on (the buffered ones, then each block
+ * as it is added) is aligned, divided by ĝ, decided and counted, and its
+ * share of the EVM, SNR, GMI and MI sums is added. Memory stays that of
+ * the buffer whatever the stream's length.
+ *
+ * Against {@link measure} on the whole stream at once: identical for a
+ * stream no longer than the buffer. For a longer one, the EVM and SNR are
+ * still those at the least-squares gain of every symbol, from running sums
+ * (Σ|z|², Re Σ z·conj(a), Σ|a|² give Σ|z/γ − a|² = Σ|z|²/γ² − Σ|a|² at
+ * γ = Re Σ z·conj(a) / Σ|a|²), equal within rounding; the decisions (BER, SER)
+ * and the GMI and MI use ĝ and σ̂² of the buffer. With N fitted symbols at
+ * an SNR s their relative sampling errors are about √(1/(2Ns)) and √(2/N);
+ * the GMI of the Gaussian auxiliary channel is stationary at the matched
+ * gain and variance, so it moves by their squares (below 1e-4 bit at the
+ * default N), and a decision flips only within ĝ's error of a threshold.
+ *
+ * It also detects cycle slips against the reference on the aligned,
+ * normalized symbols ({@link ReferenceSlipDetector}, Taylor 2009), as
+ * `cycleSlipsAgainstReference` would on the whole stream.
+ * @throws OptionError for bad options
+ * @example
+ * const s = new MeasurementStream(ref, '16qam', { skipSymbols: 2048 });
+ * for (const b of blocks) s.add(b);
+ * const m = s.finish(); // ReferenceNotFoundError or RangeError as measure() throws them
+ */
+export class MeasurementStream {
+  private readonly reference: DualPol;
+  private readonly modulation: ModulationName;
+  private readonly options: StreamMeasureOptions;
+  private readonly o: Validated;
+  private readonly leadLength: number;
+  private leadX = new Float64Array(1 << 12);
+  private leadY = new Float64Array(1 << 12);
+  private leadUsed = 0;
+  /** Symbols received so far, per polarization. */
+  private received = 0;
+  private fit: ChannelFit | null = null;
+  private tally: { x: PolarizationTally; y: PolarizationTally } | null = null;
+  private finished = false;
+
+  constructor(reference: DualPol, modulation: ModulationName, options: StreamMeasureOptions = {}) {
+    this.o = validate(modulation, options);
+    const fitSymbols = options.fitSymbols ?? DEFAULT_FIT_SYMBOLS;
+    if (!Number.isInteger(fitSymbols) || fitSymbols < 1) throw new OptionError(NAME, 'fitSymbols', 'an integer ≥ 1', fitSymbols);
+    const skip = options.skipSymbols ?? 0;
+    if (!Number.isInteger(skip) || skip < 0) throw new OptionError(NAME, 'skipSymbols', 'an integer ≥ 0', skip);
+    for (const p of ['x', 'y'] as const) requireFinite(reference[p], `reference ${p}`, 0);
+    this.reference = reference;
+    this.modulation = modulation;
+    this.options = options;
+    // At least one reference period: the lead's correlation then spans the reference's wrap, so a
+    // reference holding a shorter pattern several times (a looped PRBS cut at any length) cannot
+    // align the lead at a copy of the pattern that is wrong past the wrap.
+    this.leadLength = skip + Math.max(fitSymbols, reference.x.length >> 1);
+  }
+
+  /**
+   * Adds the next received symbols (both polarizations, equal lengths).
+   * @throws RangeError for a non-finite symbol or unequal lengths; once the
+   *   buffer is full, what {@link measure} throws when the reference is not found
+   */
+  add(block: DualPol): void {
+    if (this.finished) throw new RangeError(`${NAME}: symbols added after finish()`);
+    const n = block.x.length >> 1;
+    if (block.y.length >> 1 !== n) throw new RangeError(`${NAME}: received x has ${n} symbols, y has ${block.y.length >> 1}`);
+    requireFinite(block.x, 'received x', this.received);
+    requireFinite(block.y, 'received y', this.received);
+    let from = 0;
+    if (this.fit === null) {
+      from = Math.min(n, this.leadLength - this.leadUsed);
+      this.buffer(block, from);
+      this.received += from;
+      if (this.leadUsed === this.leadLength) this.fitLead();
+    }
+    if (from === n) return;
+    const tally = this.tally as { x: PolarizationTally; y: PolarizationTally };
+    const fit = this.fit as ChannelFit;
+    const first = this.received;
+    for (const p of ['x', 'y'] as const) {
+      const rx = block[p].subarray(2 * from) as ComplexArray;
+      const aligned = alignSymbols(fit.c, rx, first, 0, fit.labels, fit[p].alignment, fit[p].gain);
+      tally[p].add(aligned);
+    }
+    this.received += n - from;
+  }
+
+  /**
+   * The measurement over every symbol added.
+   * @throws ReferenceNotFoundError when synchronization fails; RangeError for too few symbols,
+   *   or a reference not made of the modulation's points
+   */
+  finish(): Measurement {
+    if (this.fit === null) this.fitLead();
+    this.finished = true;
+    const tally = this.tally as { x: PolarizationTally; y: PolarizationTally };
+    return assemble(this.fit as ChannelFit, tally, this.modulation, this.o);
+  }
+
+  /** Cycle slips found per polarization (complete after {@link finish}); positions count from the first measured symbol. */
+  slips(): {
+    /** Slips of the x polarization. */
+    readonly x: readonly CycleSlip[];
+    /** Slips of the y polarization. */
+    readonly y: readonly CycleSlip[];
+  } {
+    const t = this.tally;
+    return { x: t ? t.x.slips() : [], y: t ? t.y.slips() : [] };
+  }
+
+  private buffer(block: DualPol, n: number): void {
+    const need = 2 * (this.leadUsed + n);
+    if (need > this.leadX.length) {
+      let size = this.leadX.length;
+      while (size < need) size *= 2;
+      size = Math.min(size, 2 * this.leadLength);
+      const nx = new Float64Array(size);
+      const ny = new Float64Array(size);
+      nx.set(this.leadX.subarray(0, 2 * this.leadUsed));
+      ny.set(this.leadY.subarray(0, 2 * this.leadUsed));
+      this.leadX = nx;
+      this.leadY = ny;
+    }
+    this.leadX.set(block.x.subarray(0, 2 * n), 2 * this.leadUsed);
+    this.leadY.set(block.y.subarray(0, 2 * n), 2 * this.leadUsed);
+    this.leadUsed += n;
+  }
+
+  private fitLead(): void {
+    const lead = {
+      x: this.leadX.subarray(0, 2 * this.leadUsed) as ComplexArray,
+      y: this.leadY.subarray(0, 2 * this.leadUsed) as ComplexArray,
+    };
+    const fit = fitChannel(lead, this.reference, this.modulation, this.options);
+    const tally = {
+      x: new PolarizationTally(fit.c, fit.x, this.o.bitMetric, true),
+      y: new PolarizationTally(fit.c, fit.y, this.o.bitMetric, true),
+    };
+    tally.x.add(fit.x.aligned);
+    tally.y.add(fit.y.aligned);
+    this.fit = fit;
+    this.tally = tally;
+    this.leadX = new Float64Array(0);
+    this.leadY = new Float64Array(0);
+  }
+}
+
+interface Validated {
+  evmNormalization: EvmNormalization;
+  bitMetric: BitMetric;
+  symbolRate: number | undefined;
+}
+
+function validate(modulation: ModulationName, options: MeasureOptions): Validated {
   if (!MODULATIONS.includes(modulation))
     throw new OptionError(NAME, 'modulation', `one of ${MODULATIONS.join(', ')}`, modulation);
   const evmNormalization = options.evmNormalization ?? 'average';
@@ -172,64 +369,62 @@ export function measure(
   if (symbolRate !== undefined && !(symbolRate > 0 && Number.isFinite(symbolRate))) {
     throw new OptionError(NAME, 'symbolRate', 'a positive symbol rate in Bd', symbolRate);
   }
-  for (const p of ['x', 'y'] as const) {
-    requireFinite(received[p], `received ${p}`);
-    requireFinite(reference[p], `reference ${p}`);
-  }
+  return { evmNormalization, bitMetric, symbolRate };
+}
+
+/** One polarization's fit: alignment, gain, noise variance, and its symbols aligned and normalized. */
+interface PolFit {
+  alignment: PolAlignment;
+  gain: number;
+  noiseVariance: number;
+  aligned: AlignedSymbols;
+}
+
+interface ChannelFit {
+  c: Constellation;
+  sync: SyncResult;
+  labels: Record<PolName, Uint8Array>;
+  x: PolFit;
+  y: PolFit;
+}
+
+/**
+ * Synchronizes `received` with the reference and fits each polarization:
+ * ĝ = Re Σ r·conj(a) / Σ|a|² over the aligned symbols, then σ̂² = mean |r/ĝ − a|².
+ */
+function fitChannel(received: DualPol, reference: DualPol, modulation: ModulationName, options: SyncOptions): ChannelFit {
   const c = constellation(modulation);
   const sync = synchronize(received, reference, options);
   if (!sync.found) throw new ReferenceNotFoundError(sync);
   const labels = { x: referenceLabels(c, reference.x), y: referenceLabels(c, reference.y) };
-  const parts = {
-    x: measurePolarization(c, received.x, labels, sync.perPol.x, sync.skipSymbols, evmNormalization, bitMetric),
-    y: measurePolarization(c, received.y, labels, sync.perPol.y, sync.skipSymbols, evmNormalization, bitMetric),
+  const pol = (rx: ComplexArray, a: PolAlignment): PolFit => {
+    const aligned = alignSymbols(c, rx, 0, sync.skipSymbols, labels, a, 1);
+    const z = aligned.received;
+    const gain = leastSquaresGain(z, aligned.reference);
+    if (!(gain > 0)) throw new RangeError(`${NAME}: the least-squares gain of the aligned symbols is ${gain}, not positive`);
+    for (let i = 0; i < z.length; i++) z[i] /= gain;
+    const noiseVariance = errorPower(z, aligned.reference) / (z.length >> 1);
+    return { alignment: a, gain, noiseVariance, aligned };
   };
-  const total = figures(
-    c,
-    {
-      bitErrors: parts.x.counts.bitErrors + parts.y.counts.bitErrors,
-      bits: parts.x.counts.bits + parts.y.counts.bits,
-      symbolErrors: parts.x.counts.symbolErrors + parts.y.counts.symbolErrors,
-      symbols: parts.x.counts.symbols + parts.y.counts.symbols,
-    },
-    parts.x.errorEnergy + parts.y.errorEnergy,
-    parts.x.signalEnergy + parts.y.signalEnergy,
-    0.5 * (parts.x.figures.gmi + parts.y.figures.gmi),
-    0.5 * (parts.x.figures.mi + parts.y.figures.mi),
-    evmNormalization,
-  );
-  return {
-    ...total,
-    modulation,
-    perPol: { x: parts.x.result, y: parts.y.result },
-    sync,
-    airBitsPerSecond: symbolRate === undefined ? null : airBitsPerSecond(parts.x.figures.gmi, parts.y.figures.gmi, symbolRate),
-    evmNormalization,
-    bitMetric,
-    aligned: options.keepAligned ? { x: parts.x.aligned, y: parts.y.aligned } : null,
-  };
+  return { c, sync, labels, x: pol(received.x, sync.perPol.x), y: pol(received.y, sync.perPol.y) };
 }
 
-interface PolPart {
-  counts: ReturnType<typeof countErrors>;
-  errorEnergy: number;
-  signalEnergy: number;
-  figures: QualityFigures;
-  result: PolMeasurement;
-  aligned: AlignedSymbols;
-}
-
-function measurePolarization(
+/**
+ * Aligns received symbols rx[from …] with the reference: undoes the
+ * rotation and conjugation, divides by `gain`, and pairs each with its
+ * transmitted point and label. rx[i] is received symbol `first + i` of the
+ * stream, which carries reference symbol (first + i − delay) mod Nt.
+ */
+function alignSymbols(
   c: Constellation,
   rx: ComplexArray,
+  first: number,
+  from: number,
   labels: Record<PolName, Uint8Array>,
   a: PolAlignment,
-  skip: number,
-  evmNormalization: EvmNormalization,
-  bitMetric: BitMetric,
-): PolPart {
-  const nr = rx.length >> 1;
-  const n = nr - skip;
+  gain: number,
+): AlignedSymbols {
+  const n = (rx.length >> 1) - from;
   const refLabels = labels[a.source];
   const nt = refLabels.length;
   const z = complexArray(n);
@@ -237,10 +432,10 @@ function measurePolarization(
   const sent = new Uint8Array(n);
   const k = a.quarterTurns;
   const conj = a.conjugated ? -1 : 1;
-  let j = (((skip - a.delay) % nt) + nt) % nt;
+  let j = (((first + from - a.delay) % nt) + nt) % nt;
   for (let i = 0; i < n; i++) {
-    const re = rx[2 * (skip + i)];
-    const im = rx[2 * (skip + i) + 1];
+    const re = rx[2 * (from + i)];
+    const im = rx[2 * (from + i) + 1];
     // Undo e^(jkπ/2), then the conjugation: r' = conj?(e^(−jkπ/2)·r).
     let ur = re;
     let ui = im;
@@ -262,31 +457,148 @@ function measurePolarization(
     ref[2 * i + 1] = c.points[2 * label + 1];
     if (++j === nt) j = 0;
   }
-  const gain = leastSquaresGain(z, ref);
-  if (!(gain > 0)) throw new RangeError(`${NAME}: the least-squares gain of the aligned symbols is ${gain}, not positive`);
-  for (let i = 0; i < z.length; i++) z[i] /= gain;
-  const counts = countErrors(c, decide(c, z), sent);
-  const errorEnergy = errorPower(z, ref);
-  let signalEnergy = 0;
-  for (let i = 0; i < ref.length; i++) signalEnergy += ref[i] * ref[i];
-  const noiseVariance = errorEnergy / n;
-  // A noiseless stream: the information is log2 M; the Gaussian fit needs σ² > 0.
-  const info =
-    noiseVariance > 0 ? informationEstimate(c, z, sent, noiseVariance, bitMetric) : { gmi: c.bitsPerSymbol, mi: c.bitsPerSymbol };
-  const f = figures(c, counts, errorEnergy, signalEnergy, info.gmi, info.mi, evmNormalization);
+  if (gain !== 1) for (let i = 0; i < z.length; i++) z[i] /= gain;
+  return { received: z, reference: ref, labels: sent };
+}
+
+/** Running sums of one polarization's figures at a fixed gain and noise variance. */
+class PolarizationTally {
+  bitErrors = 0;
+  bits = 0;
+  symbolErrors = 0;
+  symbols = 0;
+  errorEnergy = 0;
+  signalEnergy = 0;
+  /** Σ|z|² and Σ|z|⁴ of the normalized symbols, and Re Σ z·conj(a). */
+  m2 = 0;
+  m4 = 0;
+  za = 0;
+  /** Calls of add(): more than one when symbols were measured beyond the fitted ones. */
+  private adds = 0;
+  private readonly info: InformationAccumulator | null;
+  private readonly slipDetector: ReferenceSlipDetector | null;
+
+  constructor(
+    private readonly c: Constellation,
+    readonly fit: PolFit,
+    bitMetric: BitMetric,
+    slips: boolean,
+  ) {
+    // A noiseless stream: the information is log2 M; the Gaussian fit needs σ² > 0.
+    this.info = fit.noiseVariance > 0 ? new InformationAccumulator(c, fit.noiseVariance, bitMetric) : null;
+    this.slipDetector = slips ? new ReferenceSlipDetector() : null;
+  }
+
+  add(a: AlignedSymbols): void {
+    const z = a.received;
+    const ref = a.reference;
+    const counts = countErrors(this.c, decide(this.c, z), a.labels);
+    const first = this.symbols;
+    this.bitErrors += counts.bitErrors;
+    this.bits += counts.bits;
+    this.symbolErrors += counts.symbolErrors;
+    this.symbols += counts.symbols;
+    this.errorEnergy += errorPower(z, ref);
+    let signal = 0;
+    for (let i = 0; i < ref.length; i++) signal += ref[i] * ref[i];
+    this.signalEnergy += signal;
+    let m2 = 0;
+    let m4 = 0;
+    let za = 0;
+    for (let i = 0; i < z.length; i += 2) {
+      const r2 = z[i] * z[i] + z[i + 1] * z[i + 1];
+      m2 += r2;
+      m4 += r2 * r2;
+      za += z[i] * ref[i] + z[i + 1] * ref[i + 1];
+    }
+    this.m2 += m2;
+    this.m4 += m4;
+    this.za += za;
+    this.adds++;
+    this.info?.add(z, a.labels);
+    const d = this.slipDetector;
+    if (d) for (let k = 0; k < z.length >> 1; k++) d.push(ref[2 * k], ref[2 * k + 1], z[2 * k], z[2 * k + 1], first + k);
+  }
+
+  slips(): readonly CycleSlip[] {
+    const d = this.slipDetector;
+    if (!d) return [];
+    d.finish();
+    return d.slips().slice();
+  }
+
+  counts(): ErrorCount {
+    return { bitErrors: this.bitErrors, bits: this.bits, symbolErrors: this.symbolErrors, symbols: this.symbols };
+  }
+
+  /**
+   * Σ|z/γ − a|² at the least-squares gain γ of every symbol added: the
+   * direct sum when all came in one piece (the fitted ones, normalized by
+   * their own gain), else from the running sums.
+   */
+  errorEnergyAtOwnGain(): number {
+    if (this.adds <= 1) return this.errorEnergy;
+    const gamma = this.za / this.signalEnergy;
+    return Math.max(0, this.m2 / (gamma * gamma) - this.signalEnergy);
+  }
+
+  figures(evmNormalization: EvmNormalization): QualityFigures {
+    const info = this.info ? this.info.estimate() : { gmi: this.c.bitsPerSymbol, mi: this.c.bitsPerSymbol };
+    const e = this.errorEnergyAtOwnGain();
+    return figures(this.c, this.counts(), e, this.signalEnergy, info.gmi, info.mi, evmNormalization);
+  }
+}
+
+function assemble(
+  fit: ChannelFit,
+  tally: { x: PolarizationTally; y: PolarizationTally },
+  modulation: ModulationName,
+  o: Validated,
+): Measurement {
+  const { c } = fit;
+  const fx = tally.x.figures(o.evmNormalization);
+  const fy = tally.y.figures(o.evmNormalization);
+  const pol = (t: PolarizationTally, f: QualityFigures): PolMeasurement => {
+    const n = t.symbols;
+    return {
+      ...f,
+      gain: t.fit.gain,
+      noiseVariance: t.fit.noiseVariance,
+      alignment: t.fit.alignment,
+      fourthMoment: t.m4 / n / (t.m2 / n) ** 2,
+    };
+  };
+  const cx = tally.x.counts();
+  const cy = tally.y.counts();
+  const total = figures(
+    c,
+    {
+      bitErrors: cx.bitErrors + cy.bitErrors,
+      bits: cx.bits + cy.bits,
+      symbolErrors: cx.symbolErrors + cy.symbolErrors,
+      symbols: cx.symbols + cy.symbols,
+    },
+    tally.x.errorEnergyAtOwnGain() + tally.y.errorEnergyAtOwnGain(),
+    tally.x.signalEnergy + tally.y.signalEnergy,
+    0.5 * (fx.gmi + fy.gmi),
+    0.5 * (fx.mi + fy.mi),
+    o.evmNormalization,
+  );
   return {
-    counts,
-    errorEnergy,
-    signalEnergy,
-    figures: f,
-    result: { ...f, gain, noiseVariance, alignment: a },
-    aligned: { received: z, reference: ref, labels: sent },
+    ...total,
+    modulation,
+    perPol: { x: pol(tally.x, fx), y: pol(tally.y, fy) },
+    sync: fit.sync,
+    airBitsPerSecond: o.symbolRate === undefined ? null : airBitsPerSecond(fx.gmi, fy.gmi, o.symbolRate),
+    evmNormalization: o.evmNormalization,
+    bitMetric: o.bitMetric,
+    aligned: null,
   };
 }
 
 function figures(
   c: Constellation,
-  counts: ReturnType<typeof countErrors>,
+  counts: ErrorCount,
   errorEnergy: number,
   signalEnergy: number,
   gmi: number,
@@ -317,8 +629,9 @@ function figures(
   };
 }
 
-function requireFinite(a: ComplexArray, what: string): void {
+/** @param first index of a[0] in its stream, in symbols (for the message) */
+function requireFinite(a: ComplexArray, what: string, first: number): void {
   for (let i = 0; i < a.length; i++) {
-    if (!Number.isFinite(a[i])) throw new RangeError(`${NAME}: ${what} symbol ${i >> 1} is not finite (${a[i]})`);
+    if (!Number.isFinite(a[i])) throw new RangeError(`${NAME}: ${what} symbol ${first + (i >> 1)} is not finite (${a[i]})`);
   }
 }

@@ -5,7 +5,6 @@ import {
   type ComplexArray,
   type CycleSlip,
   constellation,
-  cycleSlipsAgainstReference,
   type DualPol,
   defaultReceiver,
   type FieldBlock,
@@ -18,7 +17,7 @@ import {
   type StageRecord,
 } from '@intradyne/core';
 import { ConstellationDensity, type ConstellationHistogram } from '../density/constellation-density.js';
-import { type Measurement, measure, ReferenceNotFoundError } from '../measure/measure.js';
+import { DEFAULT_FIT_SYMBOLS, type Measurement, MeasurementStream, ReferenceNotFoundError } from '../measure/measure.js';
 import { snrForBer } from '../theory/qam-ber.js';
 
 /** Options of {@link analyzeCapture}. */
@@ -33,8 +32,24 @@ export interface AnalyzeOptions {
   readonly skipTailSymbols?: number;
   /** Largest |measured − expected| normalized fourth moment accepted for the stated modulation (default 0.1). */
   readonly modulationTolerance?: number;
-  /** Keep the recovered symbols in the result (default false). */
+  /**
+   * Keep the recovered symbols in the result (default false): memory then
+   * grows with the capture; `onSymbols` hands them out in bounded memory.
+   */
   readonly keepSymbols?: boolean;
+  /**
+   * Called with each block of recovered symbols, in order, as the chain
+   * delivers it (all of them, the skipped ones too): to write them out
+   * while the capture streams.
+   */
+  readonly onSymbols?: (block: DualPol) => void;
+  /**
+   * Recovered symbols after the skipped ones on which the synchronization,
+   * gains and noise variances are fitted before the rest is measured as it
+   * streams (default 262,144, and at least the reference's length; see
+   * {@link MeasurementStream}).
+   */
+  readonly fitSymbols?: number;
   /** Gather the data of the report's pictures in bounded memory (default false): see {@link PlotData}. */
   readonly plotData?: boolean;
 }
@@ -100,6 +115,8 @@ export interface ReproducibilityRecord {
     readonly skipTailSymbols: number;
     /** Tolerance of the modulation check. */
     readonly modulationTolerance: number;
+    /** Symbols the synchronization, gains and noise variances were fitted on. */
+    readonly fitSymbols: number;
   };
   /** SHA-256 of the input samples, rows (xi, xq, yi, yq) as little-endian float64. */
   readonly inputSha256: string;
@@ -142,10 +159,12 @@ export interface AnalysisResult {
 /**
  * The default receiver, from a capture's four channels to its figures.
  *
- * Streams `blocks` through {@link defaultReceiver} (bounded memory: only the
- * recovered symbols, one complex value per symbol and polarization, are
- * kept), then measures them against the reference ({@link measure}) and
- * checks the result: the equalizer must have converged (its criterion is in
+ * Streams `blocks` through {@link defaultReceiver} and measures the
+ * recovered symbols against the reference as they come
+ * ({@link MeasurementStream}: synchronization, gains and noise variances
+ * fitted on the first `fitSymbols` after the skipped ones, then every
+ * symbol counted; memory stays flat with the capture's length unless
+ * `keepSymbols` is set), and checks the result: the equalizer must have converged (its criterion is in
  * its diagnostics), the reference must be found, and the data must fit the
  * stated modulation ({@link ModulationFit}). A failed check gives
  * `ok: false` with the reason and no figures.
@@ -171,13 +190,44 @@ export function analyzeCapture(
     throw new OptionError('analyze', 'skipTailSymbols', 'an integer ≥ 0', skipTail);
   const tolerance = options.modulationTolerance ?? 0.1;
   if (!(tolerance > 0)) throw new OptionError('analyze', 'modulationTolerance', 'a positive number', tolerance);
+  const fitSymbols = options.fitSymbols ?? DEFAULT_FIT_SYMBOLS;
+  if (!Number.isInteger(fitSymbols) || fitSymbols < 1)
+    throw new OptionError('analyze', 'fitSymbols', 'an integer ≥ 1', fitSymbols);
   const chain = defaultReceiver(settings);
   const hasher = new Sha256();
-  const out = new SymbolCollector();
+  const kept = options.keepSymbols ? new SymbolCollector() : null;
   const density = options.plotData
     ? new ConstellationDensity(settings.modulation, { skipLeading: skipSymbols, skipTrailing: skipTail })
     : null;
   let spectra: ChannelSpectraEstimator | null = null;
+  // What measure() throws is held until the end: the equalizer's verdict comes first.
+  let measureError: unknown = null;
+  let stream: MeasurementStream | null = null;
+  try {
+    stream = new MeasurementStream(reference, settings.modulation, {
+      skipSymbols,
+      symbolRate: settings.symbolRate,
+      fitSymbols,
+    });
+  } catch (e) {
+    measureError = e;
+  }
+  // The last skipTail symbols are held back from the measurement until the stream ends.
+  const held = new HoldBack(skipTail);
+  let symbols = 0;
+  const take = (b: FieldBlock<'symbols'>) => {
+    symbols += b.x.length >> 1;
+    kept?.add(b);
+    density?.push(b);
+    options.onSymbols?.({ x: b.x, y: b.y });
+    const measured = held.push(b);
+    if (measured === null || stream === null || measureError !== null) return;
+    try {
+      stream.add(measured);
+    } catch (e) {
+      measureError = e;
+    }
+  };
   let samples = 0;
   for (const block of blocks) {
     hashRows(hasher, block);
@@ -186,26 +236,19 @@ export function analyzeCapture(
       spectra ??= new ChannelSpectraEstimator(block.sampleRate);
       spectra.push(block);
     }
-    const symbolsOut = chain.process(block);
-    density?.push(symbolsOut);
-    out.add(symbolsOut);
+    take(chain.process(block));
   }
   const tail = chain.flush();
-  if (tail) {
-    density?.push(tail);
-    out.add(tail);
-  }
-  const recovered = out.result();
+  if (tail) take(tail);
   const diagnostics = chain.diagnostics();
   const record: ReproducibilityRecord = {
     library: 'intradyne',
     version: LIBRARY_VERSION,
     pipeline: chain.describe(),
-    analysis: { skipSymbols, skipTailSymbols: skipTail, modulationTolerance: tolerance },
+    analysis: { skipSymbols, skipTailSymbols: skipTail, modulationTolerance: tolerance, fitSymbols },
     inputSha256: hasher.hex(),
     samples,
   };
-  const symbols = recovered.x.length >> 1;
   const base = {
     // The coarse shift before the matched filter plus the residual found after the equalizer.
     freqOffsetHz: sumKnown(
@@ -215,7 +258,7 @@ export function analyzeCapture(
     linewidthHz: numberField(diagnostics.phase, 'linewidthHz'),
     diagnostics,
     symbols,
-    recovered: options.keepSymbols ? recovered : null,
+    recovered: kept ? kept.result() : null,
     plotData: density ? { constellation: density.result(), inputSpectra: spectra?.result() ?? null } : null,
     record,
   };
@@ -238,16 +281,10 @@ export function analyzeCapture(
       reason: `${symbols} symbols recovered: too few to measure after leaving out ${skipSymbols} leading and ${skipTail} trailing`,
     });
   }
-  const measured =
-    skipTail === 0
-      ? recovered
-      : {
-          x: recovered.x.subarray(0, 2 * (symbols - skipTail)) as ComplexArray,
-          y: recovered.y.subarray(0, 2 * (symbols - skipTail)) as ComplexArray,
-        };
   let m: Measurement;
   try {
-    m = measure(measured, reference, settings.modulation, { skipSymbols, symbolRate: settings.symbolRate, keepAligned: true });
+    if (measureError !== null) throw measureError;
+    m = (stream as MeasurementStream).finish();
   } catch (e) {
     if (e instanceof ReferenceNotFoundError) return failed({ check: 'reference', reason: e.message });
     if (e instanceof RangeError && /reference/.test(e.message)) return failed({ check: 'reference', reason: e.message });
@@ -265,16 +302,12 @@ export function analyzeCapture(
       fit,
     );
   }
-  const aligned = m.aligned!;
-  const slips = {
-    x: cycleSlipsAgainstReference(aligned.x.received, aligned.x.reference),
-    y: cycleSlipsAgainstReference(aligned.y.received, aligned.y.reference),
-  };
+  const slips = (stream as MeasurementStream).slips();
   const theory = m.bitErrors > 0 && m.ber < 0.5 ? snrForBer(settings.modulation, m.ber) : null;
   return {
     ok: true,
     failure: null,
-    measurement: { ...m, aligned: null },
+    measurement: m,
     cycleSlips: { count: slips.x.length + slips.y.length, ...slips },
     implementationPenaltyDb: theory === null || !Number.isFinite(m.snrDb) ? null : m.snrDb - theory,
     theorySnrDb: theory,
@@ -311,16 +344,7 @@ function modulationFit(m: Measurement, modulation: Measurement['modulation'], to
   let measured = 0;
   let expected = 0;
   for (const p of ['x', 'y'] as const) {
-    const z = m.aligned![p].received;
-    let m2 = 0;
-    let m4 = 0;
-    for (let i = 0; i < z.length; i += 2) {
-      const r2 = z[i] * z[i] + z[i + 1] * z[i + 1];
-      m2 += r2;
-      m4 += r2 * r2;
-    }
-    const n = z.length >> 1;
-    measured += m4 / n / (m2 / n) ** 2 / 2;
+    measured += m.perPol[p].fourthMoment / 2;
     const s2 = m.perPol[p].noiseVariance;
     expected += (k + 4 * s2 + 2 * s2 * s2) / (1 + s2) ** 2 / 2;
   }
@@ -349,6 +373,31 @@ function hashRows(h: Sha256, b: ChannelBlock): void {
     rows[4 * k + 3] = b.yq[k];
   }
   h.updateFloat64(rows);
+}
+
+/** Delays a symbol stream by `hold` symbols: what is pushed comes out once `hold` later symbols have arrived. */
+class HoldBack {
+  private x = new Float64Array(0);
+  private y = new Float64Array(0);
+
+  constructor(private readonly hold: number) {}
+
+  /** Returns the symbols now released (null when none). */
+  push(b: FieldBlock<'symbols'>): DualPol | null {
+    if (this.hold === 0) return { x: b.x, y: b.y };
+    const n = (this.x.length + b.x.length) >> 1;
+    const x = new Float64Array(2 * n);
+    const y = new Float64Array(2 * n);
+    x.set(this.x);
+    x.set(b.x, this.x.length);
+    y.set(this.y);
+    y.set(b.y, this.y.length);
+    const out = Math.max(0, n - this.hold);
+    this.x = x.slice(2 * out);
+    this.y = y.slice(2 * out);
+    if (out === 0) return null;
+    return { x: x.subarray(0, 2 * out) as ComplexArray, y: y.subarray(0, 2 * out) as ComplexArray };
+  }
 }
 
 /** Appends symbol blocks into growing arrays (amortized doubling). */

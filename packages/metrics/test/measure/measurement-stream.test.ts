@@ -1,0 +1,98 @@
+import { type ComplexArray, type DualPol, idealMatchedFilter, Rng, simulate } from '@intradyne/core';
+import { describe, expect, it } from 'vitest';
+import { MeasurementStream, measure } from '../../src/measure/measure.js';
+
+// The symbols an ideal receiver gets from a simulated capture (RRC matched filter at the symbol instants),
+// with a gain and a π/2 rotation on y, as a blind receiver leaves them.
+// The pattern is PRBS11 (ITU-T O.150), so the stream repeats every 2,047 symbols and one period serves
+// as the reference, as for a looped pattern in the lab.
+const PERIOD = 2047;
+
+function received(n: number, esN0Db: number, seed: number) {
+  const cap = simulate({
+    seed,
+    modulation: '16qam',
+    symbols: n,
+    symbolRate: 32e9,
+    source: { kind: 'prbs', order: 11 },
+    channel: { esN0Db },
+  });
+  const x = idealMatchedFilter(cap.truth.field.x, n, cap.symbolRate, cap.rollOff);
+  const y = idealMatchedFilter(cap.truth.field.y, n, cap.symbolRate, cap.rollOff);
+  for (let k = 0; k < n; k++) {
+    const re = y[2 * k];
+    y[2 * k] = -0.6 * y[2 * k + 1];
+    y[2 * k + 1] = 0.6 * re;
+    x[2 * k] *= 0.6;
+    x[2 * k + 1] *= 0.6;
+  }
+  const reference = { x: cap.reference.x.slice(0, 2 * PERIOD), y: cap.reference.y.slice(0, 2 * PERIOD) } as DualPol;
+  return { rx: { x, y }, reference, fullReference: cap.reference };
+}
+
+/** Feeds `rx` to a stream in blocks of random sizes (1 … 20,000 symbols). */
+function streamed(rx: DualPol, s: MeasurementStream, seed: number) {
+  const rng = new Rng(seed);
+  const n = rx.x.length >> 1;
+  for (let at = 0; at < n; ) {
+    const len = Math.min(n - at, 1 + Math.floor(rng.uniform() * 20000));
+    s.add({
+      x: rx.x.subarray(2 * at, 2 * (at + len)) as ComplexArray,
+      y: rx.y.subarray(2 * at, 2 * (at + len)) as ComplexArray,
+    });
+    at += len;
+  }
+  return s.finish();
+}
+
+describe('MeasurementStream', () => {
+  const n = 65536;
+  const { rx, reference, fullReference } = received(n, 10, 31);
+  const whole = measure(rx, reference, '16qam', { skipSymbols: 1000, symbolRate: 32e9 });
+
+  it('equals measure() exactly when the stream fits its buffer, whatever the blocks', () => {
+    const m = streamed(rx, new MeasurementStream(reference, '16qam', { skipSymbols: 1000, symbolRate: 32e9 }), 1);
+    expect(m).toEqual(whole);
+  });
+
+  it('fitted on a leading span, gives the figures of measure() on the whole stream', () => {
+    const m = streamed(rx, new MeasurementStream(reference, '16qam', { skipSymbols: 1000, fitSymbols: 4096 }), 2);
+    expect(m.symbols).toBe(whole.symbols);
+    // Same alignment (its correlation statistics are those of the span).
+    const { source, delay, quarterTurns, conjugated } = whole.perPol.y.alignment;
+    expect(m.perPol.y.alignment).toMatchObject({ source, delay, quarterTurns, conjugated });
+    // EVM and SNR come from running sums at the gain of every symbol: the same figure, up to the
+    // rounding of Σ|z|²/γ² − Σ|a|² (about 1e-15 relative, times 1 + 1/SNR ≈ 11 lost to cancellation).
+    expect(m.snrDb).toBeCloseTo(whole.snrDb, 9);
+    expect(m.evmRms / whole.evmRms).toBeCloseTo(1, 10);
+    // Decisions use the gain fitted on 4,096 symbols (relative error ≈ √(1/(2·4096·10)) = 3.5e-3):
+    // the bit errors it flips must stay far inside the 95 % Clopper–Pearson interval the BER is
+    // reported with (the estimator's own uncertainty); here a tenth of its half-width.
+    const halfWidth = (whole.berCi95[1] - whole.berCi95[0]) / 2;
+    expect(Math.abs(m.ber - whole.ber)).toBeLessThan(0.1 * halfWidth);
+    // The GMI is stationary at the matched gain and noise variance (Alvarado et al. 2018: the
+    // auxiliary-channel GMI is a lower bound maximized by the true channel), so the fit's errors
+    // (3.5e-3 and √(2/4096) = 2.2e-2 relative) move it by their squares times O(1 bit): < 1e-3 bit.
+    expect(Math.abs(m.gmi - whole.gmi)).toBeLessThan(1e-3);
+    expect(Math.abs(m.mi - whole.mi)).toBeLessThan(1e-3);
+  });
+
+  it('fits over at least one reference period: a looped pattern cut at any length cannot misalign the rest', () => {
+    // The whole transmitted sequence as the reference: PRBS11 repeats inside it, but not at its length
+    // (65,536 is no multiple of 2,047), so a lead shorter than it would find several equal correlation
+    // peaks, of which only one stays right past the reference's wrap.
+    const expected = measure(rx, fullReference, '16qam', { skipSymbols: 1000 });
+    const m = streamed(rx, new MeasurementStream(fullReference, '16qam', { skipSymbols: 1000, fitSymbols: 4096 }), 3);
+    expect(m).toEqual(expected);
+  });
+
+  it('throws what measure() throws: symbols after finish, non-finite symbols with their position', () => {
+    const s = new MeasurementStream(reference, '16qam', { fitSymbols: 300 });
+    s.add({ x: rx.x.subarray(0, 1000) as ComplexArray, y: rx.y.subarray(0, 1000) as ComplexArray });
+    const bad = { x: rx.x.slice(1000, 1010) as ComplexArray, y: rx.y.slice(1000, 1010) as ComplexArray };
+    bad.y[7] = Number.NaN;
+    expect(() => s.add(bad)).toThrow(/received y symbol 503 is not finite/);
+    s.finish();
+    expect(() => s.add(bad)).toThrow(RangeError);
+  });
+});
