@@ -6,10 +6,13 @@
 // the hot loops anew in each isolate: about 1 s of CPU on the development
 // machine, against 0.17 s per 16,384-symbol capture after it), which the
 // larger captures amortize. The load average before each size is printed:
-// on a shared machine other processes take cores from --jobs 2.
+// on a shared machine other processes take cores from --jobs 2. A single
+// worker already uses more than one core (V8 compiles and collects garbage on
+// background threads), so where `taskset` exists --jobs 1 is also run pinned
+// to one CPU, and the speed-up of two cores over one is printed beside.
 // Part of `npx -y pnpm@12.4.2 bench`; run after a build.
 // `SWEEP_BENCH_RUNS` changes the run count (default 3).
-import { execFileSync } from 'node:child_process';
+import { execFileSync, spawnSync } from 'node:child_process';
 import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { loadavg, tmpdir } from 'node:os';
 import { dirname, join } from 'node:path';
@@ -20,6 +23,8 @@ const CLI = join(dirname(fileURLToPath(import.meta.url)), '..', 'packages', 'io'
 const CAPTURES = 16;
 const SIZES = [16384, 65536];
 const RUNS = Number(process.env.SWEEP_BENCH_RUNS ?? 3);
+
+const TASKSET = spawnSync('taskset', ['-c', '0', 'true']).status === 0;
 
 const m = machine();
 console.log(`machine: ${m.cpu} (${m.cores} cores), Node ${m.node}`);
@@ -44,23 +49,39 @@ for (const SYMBOLS of SIZES) {
     execFileSync(process.execPath, [CLI, 'simulate', scenario, '--out', input], { stdio: 'ignore' });
     const load = loadavg()[0];
     const medians = {};
-    for (const jobs of [1, 2]) {
+    const variants = [
+      { key: '1', jobs: 1, pinned: false },
+      { key: '2', jobs: 2, pinned: false },
+      ...(TASKSET ? [{ key: 'one core', jobs: 1, pinned: true }] : []),
+    ];
+    for (const { key, jobs, pinned } of variants) {
       const times = [];
       for (let r = 0; r < RUNS; r++) {
-        const out = join(dir, `out-${jobs}-${r}`);
+        const out = join(dir, `out-${key.replace(' ', '-')}-${r}`);
+        const args = [CLI, 'sweep', input, '--jobs', String(jobs), '--out', out];
         const t0 = process.hrtime.bigint();
-        execFileSync(process.execPath, [CLI, 'sweep', input, '--jobs', String(jobs), '--out', out], { stdio: 'ignore' });
+        if (pinned) execFileSync('taskset', ['-c', '0', process.execPath, ...args], { stdio: 'ignore' });
+        else execFileSync(process.execPath, args, { stdio: 'ignore' });
         times.push(Number(process.hrtime.bigint() - t0) / 1e9);
       }
       const rec = report(
-        `sweep of ${CAPTURES} captures of ${SYMBOLS.toLocaleString('en')} symbols, --jobs ${jobs}`,
-        { units: 'symbols', perRun: CAPTURES * SYMBOLS, params: { captures: CAPTURES, symbols: SYMBOLS, jobs } },
+        `sweep of ${CAPTURES} captures of ${SYMBOLS.toLocaleString('en')} symbols, --jobs ${jobs}${pinned ? ' pinned to one CPU' : ''}`,
+        { units: 'symbols', perRun: CAPTURES * SYMBOLS, params: { captures: CAPTURES, symbols: SYMBOLS, jobs, pinned } },
         times,
       );
       records.push(rec);
-      medians[jobs] = rec.medianSeconds;
+      medians[key] = rec.medianSeconds;
     }
-    const note = `sweep speed-up, ${SYMBOLS.toLocaleString('en')}-symbol captures, --jobs 2 over --jobs 1: ${(medians[1] / medians[2]).toFixed(2)}× (${medians[1].toFixed(1)} s → ${medians[2].toFixed(1)} s, wall time including start-up; load average ${load.toFixed(1)} before)`;
+    const size = `${SYMBOLS.toLocaleString('en')}-symbol captures`;
+    const speedUps = [
+      `--jobs 2 over --jobs 1: ${(medians['1'] / medians['2']).toFixed(2)}× (${medians['1'].toFixed(1)} s → ${medians['2'].toFixed(1)} s)`,
+      ...(TASKSET
+        ? [
+            `two cores (--jobs 2) over one (--jobs 1 pinned): ${(medians['one core'] / medians['2']).toFixed(2)}× (${medians['one core'].toFixed(1)} s → ${medians['2'].toFixed(1)} s)`,
+          ]
+        : []),
+    ];
+    const note = `sweep speed-up, ${size}: ${speedUps.join('; ')}; wall time including start-up; load average ${load.toFixed(1)} before`;
     console.log(note);
     notes.push(note);
   } finally {
