@@ -221,6 +221,9 @@ export function separationIndex(m2: number, m4: number, kurtosis: number): numbe
 /** Numbers per symbol in the output scratch of the adapting kernels: x̂re, x̂im, ŷre, ŷim, cost x, cost y. */
 export const ADAPT_STRIDE = 6;
 
+/** Outputs of the first symbol of a segment, before the fused update pass takes over (one per isolate). */
+const firstOutputs = new Float64Array(4);
+
 /**
  * Filters and adapts `count` consecutive symbols with a radius-directed rule
  * (CMA: one ring; RDE: the nearest ring), the rule evaluated inline:
@@ -274,32 +277,11 @@ export function adaptRadial(
   for (let s = 0; s < count; s++) {
     const newest2 = 2 * (newest0 + 2 * s);
     if (!ready) {
-      xr = 0;
-      xi = 0;
-      yr = 0;
-      yi = 0;
-      for (let t = 0, q = newest2; t < L2; t += 2, q -= 2) {
-        const ar = ux[q];
-        const ai = ux[q + 1];
-        const br = uy[q];
-        const bi = uy[q + 1];
-        let hr = taps[t];
-        let hi = taps[t + 1];
-        xr += hr * ar - hi * ai;
-        xi += hr * ai + hi * ar;
-        hr = taps[oXY + t];
-        hi = taps[oXY + t + 1];
-        xr += hr * br - hi * bi;
-        xi += hr * bi + hi * br;
-        hr = taps[oYX + t];
-        hi = taps[oYX + t + 1];
-        yr += hr * ar - hi * ai;
-        yi += hr * ai + hi * ar;
-        hr = taps[oYY + t];
-        hi = taps[oYY + t + 1];
-        yr += hr * br - hi * bi;
-        yi += hr * bi + hi * br;
-      }
+      butterflyOutput(taps, L, ux, uy, newest0 + 2 * s, firstOutputs);
+      xr = firstOutputs[0];
+      xi = firstOutputs[1];
+      yr = firstOutputs[2];
+      yi = firstOutputs[3];
     }
     ready = false;
     const px = xr * xr + xi * xi;
