@@ -99,6 +99,8 @@ function figures(f: QualityFigures) {
     gmi: f.gmi,
     ngmi: f.ngmi,
     mi: f.mi,
+    uncorrected: f.uncorrected,
+    blockCorrected: f.blockCorrected,
   };
 }
 
@@ -146,6 +148,7 @@ export function analysisToJson({ capture, result }: FileAnalysis): Record<string
         }
       : null,
     sync: m?.sync ?? null,
+    slipCorrection: m?.slipCorrection ?? null,
     modulationFit: result.modulationFit,
     slips: result.cycleSlips,
     diagnostics: result.diagnostics,

@@ -171,5 +171,13 @@ export function summary({ capture, result }: FileAnalysis): string {
       `cycle slips ${result.cycleSlips.count}, dispersion ${fmt(cd?.dispersionPsPerNm, 0)} ps/nm${cd?.estimated ? ' (estimated)' : ''}, ` +
       `penalty against theory ${fmt(result.implementationPenaltyDb, 2)} dB`,
   );
+  const turned = m.slipCorrection.turnedBlocks.x + m.slipCorrection.turnedBlocks.y;
+  if (turned > 0) {
+    const other = m.slipCorrection.mode === 'per-block' ? m.uncorrected : m.blockCorrected;
+    lines.push(
+      `slip correction ${m.slipCorrection.mode} (blocks of ${m.slipCorrection.blockSymbols} symbols, ${turned} turned): ` +
+        `BER ${m.slipCorrection.mode === 'per-block' ? 'without' : 'with'} it ${fmt(other.ber)}, ${other.bitErrors} errors`,
+    );
+  }
   return `${lines.join('\n')}\n`;
 }

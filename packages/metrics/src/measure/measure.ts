@@ -17,9 +17,9 @@ import { referenceLabels } from '../counting/reference-labels.js';
 import { airBitsPerSecond } from '../information/air.js';
 import { type BitMetric, InformationAccumulator } from '../information/bit-metrics.js';
 import { constellationPower, type EvmNormalization, errorPower } from '../quality/evm.js';
-import { leastSquaresGain } from '../quality/gain.js';
 import { qFactorDb, toDb } from '../quality/snr.js';
 import { type PolAlignment, type PolName, type SyncOptions, type SyncResult, synchronize } from '../sync/synchronize.js';
+import { blockQuarterTurns, quadrantResolvedSums, rotateQuarterTurns } from './quadrant-blocks.js';
 
 /** Options of {@link measure}; the synchronization options apply too. */
 export interface MeasureOptions extends SyncOptions {
@@ -31,6 +31,43 @@ export interface MeasureOptions extends SyncOptions {
   readonly symbolRate?: number;
   /** Keep the aligned, normalized symbols in the result (for constellation plots), default false. */
   readonly keepAligned?: boolean;
+  /**
+   * How the π/2 ambiguity is resolved along the stream. 'per-block' (the
+   * default): each block of `slipBlockSymbols` measured symbols is turned by
+   * the quarter turn that best fits the reference there, so that a cycle
+   * slip costs the symbols of one block instead of every symbol after it;
+   * 'none': the quarter turn of the first block holds for the whole stream
+   * (every symbol after a slip counts as wrong). Both counts are always
+   * reported too ({@link QualityFigures.uncorrected} and
+   * {@link QualityFigures.blockCorrected}).
+   */
+  readonly slipCorrection?: SlipCorrection;
+  /** Measured symbols per block of the 'per-block' slip correction (integer ≥ 16, default 512). */
+  readonly slipBlockSymbols?: number;
+}
+
+/** How the measurement resolves the π/2 ambiguity along the stream (see {@link MeasureOptions.slipCorrection}). */
+export type SlipCorrection = 'per-block' | 'none';
+
+/** Default {@link MeasureOptions.slipBlockSymbols}: a slip costs at most this many symbols. */
+export const DEFAULT_SLIP_BLOCK_SYMBOLS = 512;
+
+/** Bit and symbol error figures, as counted one way (see {@link QualityFigures.uncorrected}). */
+export interface ErrorFigures {
+  /** Bit error ratio; with zero errors the upper end of `berCi95` (see `berIsUpperBound`). */
+  readonly ber: number;
+  /** Clopper–Pearson 95 % interval of the BER. */
+  readonly berCi95: Interval;
+  /** True when no bit error was seen and `ber` is an upper bound. */
+  readonly berIsUpperBound: boolean;
+  /** Bit errors counted. */
+  readonly bitErrors: number;
+  /** Symbol error ratio; with zero errors the upper end of `serCi95`. */
+  readonly ser: number;
+  /** Clopper–Pearson 95 % interval of the SER. */
+  readonly serCi95: Interval;
+  /** Symbol errors counted. */
+  readonly symbolErrors: number;
 }
 
 /** One polarization's symbols as measured, from `skipSymbols` on: N = Nr − skipSymbols of each. */
@@ -77,6 +114,19 @@ export interface QualityFigures {
   readonly ngmi: number;
   /** Symbol-wise MI, bits per symbol per polarization. */
   readonly mi: number;
+  /**
+   * The errors counted with the first block's quarter turn for the whole
+   * stream: what a receiver without slip correction would see. The
+   * headline figures are these with {@link MeasureOptions.slipCorrection}
+   * 'none'.
+   */
+  readonly uncorrected: ErrorFigures;
+  /**
+   * The errors counted with each block at its own best quarter turn. The
+   * headline figures are these with 'per-block' slip correction (the
+   * default); equal to `uncorrected` when no block needed another turn.
+   */
+  readonly blockCorrected: ErrorFigures;
 }
 
 /** One polarization's figures with what was fitted. */
@@ -108,6 +158,20 @@ export interface Measurement extends QualityFigures {
   };
   /** Synchronization findings: delay, swap, rotation per polarization, conjugation. */
   readonly sync: SyncResult;
+  /** How the π/2 ambiguity was resolved along the stream, and how often it changed. */
+  readonly slipCorrection: {
+    /** 'per-block' or 'none' (the headline figures; `uncorrected` holds the other count). */
+    readonly mode: SlipCorrection;
+    /** Measured symbols per block. */
+    readonly blockSymbols: number;
+    /** Blocks whose best quarter turn differed from the first block's, per polarization. */
+    readonly turnedBlocks: {
+      /** Of the x polarization. */
+      readonly x: number;
+      /** Of the y polarization. */
+      readonly y: number;
+    };
+  };
   /** (GMIₓ + GMIᵧ)·Rs, bit/s, when `symbolRate` was given; otherwise null. */
   readonly airBitsPerSecond: number | null;
   /** How `evmRms` was normalized. */
@@ -155,6 +219,11 @@ const NAME = 'measure';
  * σ̂² = mean |z − a|² per polarization). Totals pool the counts and error
  * powers of both polarizations; total GMI and MI are the mean per
  * polarization (bits per symbol per polarization).
+ *
+ * Cycle slips: by default each block of 512 measured symbols is turned by
+ * the quarter turn that best fits the reference there before anything is
+ * counted or fitted (see {@link MeasureOptions.slipCorrection}); the counts
+ * with the first block's turn for the whole stream are in `uncorrected`.
  * @param received received symbols, Nr per polarization (e.g. after carrier recovery)
  * @param reference transmitted symbols, Nt per polarization, any scale; periodic when Nt < Nr
  * @throws ReferenceNotFoundError when synchronization fails; OptionError for bad options;
@@ -172,15 +241,27 @@ export function measure(
     requireFinite(received[p], `received ${p}`, 0);
     requireFinite(reference[p], `reference ${p}`, 0);
   }
-  const fit = fitChannel(received, reference, modulation, options);
+  const fit = fitChannel(received, reference, modulation, o);
   const tally = {
-    x: new PolarizationTally(fit.c, fit.x, o.bitMetric, false),
-    y: new PolarizationTally(fit.c, fit.y, o.bitMetric, false),
+    x: new PolarizationTally(fit.c, fit.x, o, false),
+    y: new PolarizationTally(fit.c, fit.y, o, false),
   };
   tally.x.add(fit.x.aligned);
   tally.y.add(fit.y.aligned);
   const m = assemble(fit, tally, modulation, o);
-  return options.keepAligned ? { ...m, aligned: { x: fit.x.aligned, y: fit.y.aligned } } : m;
+  if (!options.keepAligned) return m;
+  // The kept symbols as they were counted: each block turned as the tally turned it.
+  for (const p of ['x', 'y'] as const) {
+    const { received: z, reference: a } = fit[p].aligned;
+    const n = z.length >> 1;
+    const block = o.slipCorrection === 'per-block' ? o.slipBlockSymbols : n;
+    const first = blockQuarterTurns(z, a, 0, Math.min(n, block));
+    for (let from = 0; from < n; from += block) {
+      const to = Math.min(n, from + block);
+      rotateQuarterTurns(z, o.slipCorrection === 'per-block' ? blockQuarterTurns(z, a, from, to) : first, from, to);
+    }
+  }
+  return { ...m, aligned: { x: fit.x.aligned, y: fit.y.aligned } };
 }
 
 /** Options of {@link MeasurementStream}: those of {@link measure} but `keepAligned`, and the fitting span. */
@@ -231,7 +312,6 @@ export const DEFAULT_FIT_SYMBOLS = 2 ** 18;
 export class MeasurementStream {
   private readonly reference: DualPol;
   private readonly modulation: ModulationName;
-  private readonly options: StreamMeasureOptions;
   private readonly o: Validated;
   private readonly leadLength: number;
   private leadX = new Float64Array(1 << 12);
@@ -252,7 +332,6 @@ export class MeasurementStream {
     for (const p of ['x', 'y'] as const) requireFinite(reference[p], `reference ${p}`, 0);
     this.reference = reference;
     this.modulation = modulation;
-    this.options = options;
     // At least one reference period: the lead's correlation then spans the reference's wrap, so a
     // reference holding a shorter pattern several times (a looped PRBS cut at any length) cannot
     // align the lead at a copy of the pattern that is wrong past the wrap.
@@ -335,10 +414,10 @@ export class MeasurementStream {
       x: this.leadX.subarray(0, 2 * this.leadUsed) as ComplexArray,
       y: this.leadY.subarray(0, 2 * this.leadUsed) as ComplexArray,
     };
-    const fit = fitChannel(lead, this.reference, this.modulation, this.options);
+    const fit = fitChannel(lead, this.reference, this.modulation, this.o);
     const tally = {
-      x: new PolarizationTally(fit.c, fit.x, this.o.bitMetric, true),
-      y: new PolarizationTally(fit.c, fit.y, this.o.bitMetric, true),
+      x: new PolarizationTally(fit.c, fit.x, this.o, true),
+      y: new PolarizationTally(fit.c, fit.y, this.o, true),
     };
     tally.x.add(fit.x.aligned);
     tally.y.add(fit.y.aligned);
@@ -349,10 +428,12 @@ export class MeasurementStream {
   }
 }
 
-interface Validated {
+interface Validated extends SyncOptions {
   evmNormalization: EvmNormalization;
   bitMetric: BitMetric;
   symbolRate: number | undefined;
+  slipCorrection: SlipCorrection;
+  slipBlockSymbols: number;
 }
 
 function validate(modulation: ModulationName, options: MeasureOptions): Validated {
@@ -369,7 +450,22 @@ function validate(modulation: ModulationName, options: MeasureOptions): Validate
   if (symbolRate !== undefined && !(symbolRate > 0 && Number.isFinite(symbolRate))) {
     throw new OptionError(NAME, 'symbolRate', 'a positive symbol rate in Bd', symbolRate);
   }
-  return { evmNormalization, bitMetric, symbolRate };
+  const slipCorrection = options.slipCorrection ?? 'per-block';
+  if (slipCorrection !== 'per-block' && slipCorrection !== 'none')
+    throw new OptionError(NAME, 'slipCorrection', "'per-block' or 'none'", slipCorrection);
+  const slipBlockSymbols = options.slipBlockSymbols ?? DEFAULT_SLIP_BLOCK_SYMBOLS;
+  if (!Number.isInteger(slipBlockSymbols) || slipBlockSymbols < 16)
+    throw new OptionError(NAME, 'slipBlockSymbols', 'an integer ≥ 16', slipBlockSymbols);
+  return {
+    skipSymbols: options.skipSymbols,
+    minCorrelation: options.minCorrelation,
+    minPeakToFloor: options.minPeakToFloor,
+    evmNormalization,
+    bitMetric,
+    symbolRate,
+    slipCorrection,
+    slipBlockSymbols,
+  };
 }
 
 /** One polarization's fit: alignment, gain, noise variance, and its symbols aligned and normalized. */
@@ -390,20 +486,26 @@ interface ChannelFit {
 
 /**
  * Synchronizes `received` with the reference and fits each polarization:
- * ĝ = Re Σ r·conj(a) / Σ|a|² over the aligned symbols, then σ̂² = mean |r/ĝ − a|².
+ * ĝ = Re Σ r·conj(a) / Σ|a|² over the aligned symbols, then σ̂² = mean |r/ĝ − a|²,
+ * with each block of `slipBlockSymbols` turned by its best quarter turn
+ * first, whatever the slip correction (the gain is a scale, which a slip
+ * must not spoil): ĝ = Σ_b max_k Re(e^(−jkπ/2)·Σ_b r·a*) / Σ|a|² and
+ * σ̂² = (Σ|r|²/ĝ² − Σ|a|²)/N (the plain sums for a stream without slips).
  */
-function fitChannel(received: DualPol, reference: DualPol, modulation: ModulationName, options: SyncOptions): ChannelFit {
+function fitChannel(received: DualPol, reference: DualPol, modulation: ModulationName, o: Validated): ChannelFit {
   const c = constellation(modulation);
-  const sync = synchronize(received, reference, options);
+  const sync = synchronize(received, reference, o);
   if (!sync.found) throw new ReferenceNotFoundError(sync);
   const labels = { x: referenceLabels(c, reference.x), y: referenceLabels(c, reference.y) };
   const pol = (rx: ComplexArray, a: PolAlignment): PolFit => {
     const aligned = alignSymbols(c, rx, 0, sync.skipSymbols, labels, a, 1);
     const z = aligned.received;
-    const gain = leastSquaresGain(z, aligned.reference);
+    const ref = aligned.reference;
+    const { zz, aa, za } = quadrantResolvedSums(z, ref, o.slipBlockSymbols);
+    const gain = za / aa;
     if (!(gain > 0)) throw new RangeError(`${NAME}: the least-squares gain of the aligned symbols is ${gain}, not positive`);
     for (let i = 0; i < z.length; i++) z[i] /= gain;
-    const noiseVariance = errorPower(z, aligned.reference) / (z.length >> 1);
+    const noiseVariance = Math.max(0, zz / (gain * gain) - aa) / (z.length >> 1);
     return { alignment: a, gain, noiseVariance, aligned };
   };
   return { c, sync, labels, x: pol(received.x, sync.perPol.x), y: pol(received.y, sync.perPol.y) };
@@ -461,11 +563,19 @@ function alignSymbols(
   return { received: z, reference: ref, labels: sent };
 }
 
-/** Running sums of one polarization's figures at a fixed gain and noise variance. */
+/**
+ * Running sums of one polarization's figures at a fixed gain and noise
+ * variance. Symbols are taken in blocks of `slipBlockSymbols` counted from
+ * the first measured one (whatever the sizes they are added in): each block
+ * is counted at the first block's quarter turn (the uncorrected count, and
+ * what the slip detector sees) and at its own best one (the per-block
+ * count); the EVM, SNR and information sums follow the chosen mode.
+ */
 class PolarizationTally {
-  bitErrors = 0;
+  /** Error counts at the first block's quarter turn and at each block's own. */
+  private readonly uncorrected = { bitErrors: 0, symbolErrors: 0 };
+  private readonly corrected = { bitErrors: 0, symbolErrors: 0 };
   bits = 0;
-  symbolErrors = 0;
   symbols = 0;
   errorEnergy = 0;
   signalEnergy = 0;
@@ -473,51 +583,53 @@ class PolarizationTally {
   m2 = 0;
   m4 = 0;
   za = 0;
+  /** Blocks whose best quarter turn differs from the first block's. */
+  turnedBlocks = 0;
   /** Calls of add(): more than one when symbols were measured beyond the fitted ones. */
   private adds = 0;
+  private firstTurn = -1;
+  private readonly block: number;
+  private readonly perBlock: boolean;
+  private readonly z: Float64Array;
+  private readonly a: Float64Array;
+  private readonly labels: Uint8Array;
+  private pending = 0;
   private readonly info: InformationAccumulator | null;
   private readonly slipDetector: ReferenceSlipDetector | null;
 
   constructor(
     private readonly c: Constellation,
     readonly fit: PolFit,
-    bitMetric: BitMetric,
+    o: Validated,
     slips: boolean,
   ) {
     // A noiseless stream: the information is log2 M; the Gaussian fit needs σ² > 0.
-    this.info = fit.noiseVariance > 0 ? new InformationAccumulator(c, fit.noiseVariance, bitMetric) : null;
+    this.info = fit.noiseVariance > 0 ? new InformationAccumulator(c, fit.noiseVariance, o.bitMetric) : null;
     this.slipDetector = slips ? new ReferenceSlipDetector() : null;
+    this.block = o.slipBlockSymbols;
+    this.perBlock = o.slipCorrection === 'per-block';
+    this.z = new Float64Array(2 * this.block);
+    this.a = new Float64Array(2 * this.block);
+    this.labels = new Uint8Array(this.block);
   }
 
-  add(a: AlignedSymbols): void {
-    const z = a.received;
-    const ref = a.reference;
-    const counts = countErrors(this.c, decide(this.c, z), a.labels);
-    const first = this.symbols;
-    this.bitErrors += counts.bitErrors;
-    this.bits += counts.bits;
-    this.symbolErrors += counts.symbolErrors;
-    this.symbols += counts.symbols;
-    this.errorEnergy += errorPower(z, ref);
-    let signal = 0;
-    for (let i = 0; i < ref.length; i++) signal += ref[i] * ref[i];
-    this.signalEnergy += signal;
-    let m2 = 0;
-    let m4 = 0;
-    let za = 0;
-    for (let i = 0; i < z.length; i += 2) {
-      const r2 = z[i] * z[i] + z[i + 1] * z[i + 1];
-      m2 += r2;
-      m4 += r2 * r2;
-      za += z[i] * ref[i] + z[i + 1] * ref[i + 1];
+  add(s: AlignedSymbols): void {
+    const n = s.received.length >> 1;
+    for (let at = 0; at < n; ) {
+      const take = Math.min(n - at, this.block - this.pending);
+      this.z.set(s.received.subarray(2 * at, 2 * (at + take)), 2 * this.pending);
+      this.a.set(s.reference.subarray(2 * at, 2 * (at + take)), 2 * this.pending);
+      this.labels.set(s.labels.subarray(at, at + take), this.pending);
+      this.pending += take;
+      at += take;
+      if (this.pending === this.block) this.countBlock();
     }
-    this.m2 += m2;
-    this.m4 += m4;
-    this.za += za;
     this.adds++;
-    this.info?.add(z, a.labels);
-    const d = this.slipDetector;
-    if (d) for (let k = 0; k < z.length >> 1; k++) d.push(ref[2 * k], ref[2 * k + 1], z[2 * k], z[2 * k + 1], first + k);
+  }
+
+  /** Counts the last, partial block. */
+  finish(): void {
+    if (this.pending > 0) this.countBlock();
   }
 
   slips(): readonly CycleSlip[] {
@@ -527,8 +639,14 @@ class PolarizationTally {
     return d.slips().slice();
   }
 
+  /** The counts of the mode in force. */
   counts(): ErrorCount {
-    return { bitErrors: this.bitErrors, bits: this.bits, symbolErrors: this.symbolErrors, symbols: this.symbols };
+    return this.countsOf(this.perBlock ? 'corrected' : 'uncorrected');
+  }
+
+  countsOf(which: 'corrected' | 'uncorrected'): ErrorCount {
+    const c = this[which];
+    return { bitErrors: c.bitErrors, bits: this.bits, symbolErrors: c.symbolErrors, symbols: this.symbols };
   }
 
   /**
@@ -545,7 +663,67 @@ class PolarizationTally {
   figures(evmNormalization: EvmNormalization): QualityFigures {
     const info = this.info ? this.info.estimate() : { gmi: this.c.bitsPerSymbol, mi: this.c.bitsPerSymbol };
     const e = this.errorEnergyAtOwnGain();
-    return figures(this.c, this.counts(), e, this.signalEnergy, info.gmi, info.mi, evmNormalization);
+    return figures(
+      this.c,
+      this.counts(),
+      { uncorrected: this.countsOf('uncorrected'), corrected: this.countsOf('corrected') },
+      e,
+      this.signalEnergy,
+      info.gmi,
+      info.mi,
+      evmNormalization,
+    );
+  }
+
+  private countBlock(): void {
+    const n = this.pending;
+    const z = this.z.subarray(0, 2 * n) as ComplexArray;
+    const a = this.a.subarray(0, 2 * n) as ComplexArray;
+    const labels = this.labels.subarray(0, n);
+    const turn = blockQuarterTurns(z, a, 0, n);
+    if (this.firstTurn < 0) this.firstTurn = turn;
+    const first = this.symbols;
+    // The uncorrected view first: the stream at the first block's quarter turn.
+    rotateQuarterTurns(z, this.firstTurn, 0, n);
+    const d = this.slipDetector;
+    if (d) for (let k = 0; k < n; k++) d.push(a[2 * k], a[2 * k + 1], z[2 * k], z[2 * k + 1], first + k);
+    const uncorrected = countErrors(this.c, decide(this.c, z), labels);
+    if (!this.perBlock) this.sum(z, a, labels);
+    let corrected = uncorrected;
+    if (turn !== this.firstTurn) {
+      this.turnedBlocks++;
+      rotateQuarterTurns(z, turn - this.firstTurn, 0, n);
+      corrected = countErrors(this.c, decide(this.c, z), labels);
+    }
+    if (this.perBlock) this.sum(z, a, labels);
+    this.uncorrected.bitErrors += uncorrected.bitErrors;
+    this.uncorrected.symbolErrors += uncorrected.symbolErrors;
+    this.corrected.bitErrors += corrected.bitErrors;
+    this.corrected.symbolErrors += corrected.symbolErrors;
+    this.bits += uncorrected.bits;
+    this.symbols += n;
+    this.pending = 0;
+  }
+
+  /** Adds a block's share of the EVM, SNR, moment and information sums. */
+  private sum(z: ComplexArray, ref: ComplexArray, labels: Uint8Array): void {
+    this.errorEnergy += errorPower(z, ref);
+    let signal = 0;
+    let m2 = 0;
+    let m4 = 0;
+    let za = 0;
+    for (let i = 0; i < z.length; i += 2) {
+      signal += ref[i] * ref[i] + ref[i + 1] * ref[i + 1];
+      const r2 = z[i] * z[i] + z[i + 1] * z[i + 1];
+      m2 += r2;
+      m4 += r2 * r2;
+      za += z[i] * ref[i] + z[i + 1] * ref[i + 1];
+    }
+    this.signalEnergy += signal;
+    this.m2 += m2;
+    this.m4 += m4;
+    this.za += za;
+    this.info?.add(z, labels);
   }
 }
 
@@ -555,6 +733,8 @@ function assemble(
   modulation: ModulationName,
   o: Validated,
 ): Measurement {
+  tally.x.finish();
+  tally.y.finish();
   const { c } = fit;
   const fx = tally.x.figures(o.evmNormalization);
   const fy = tally.y.figures(o.evmNormalization);
@@ -568,15 +748,18 @@ function assemble(
       fourthMoment: t.m4 / n / (t.m2 / n) ** 2,
     };
   };
-  const cx = tally.x.counts();
-  const cy = tally.y.counts();
+  const pooled = (a: ErrorCount, b: ErrorCount): ErrorCount => ({
+    bitErrors: a.bitErrors + b.bitErrors,
+    bits: a.bits + b.bits,
+    symbolErrors: a.symbolErrors + b.symbolErrors,
+    symbols: a.symbols + b.symbols,
+  });
   const total = figures(
     c,
+    pooled(tally.x.counts(), tally.y.counts()),
     {
-      bitErrors: cx.bitErrors + cy.bitErrors,
-      bits: cx.bits + cy.bits,
-      symbolErrors: cx.symbolErrors + cy.symbolErrors,
-      symbols: cx.symbols + cy.symbols,
+      uncorrected: pooled(tally.x.countsOf('uncorrected'), tally.y.countsOf('uncorrected')),
+      corrected: pooled(tally.x.countsOf('corrected'), tally.y.countsOf('corrected')),
     },
     tally.x.errorEnergyAtOwnGain() + tally.y.errorEnergyAtOwnGain(),
     tally.x.signalEnergy + tally.y.signalEnergy,
@@ -589,6 +772,11 @@ function assemble(
     modulation,
     perPol: { x: pol(tally.x, fx), y: pol(tally.y, fy) },
     sync: fit.sync,
+    slipCorrection: {
+      mode: o.slipCorrection,
+      blockSymbols: o.slipBlockSymbols,
+      turnedBlocks: { x: tally.x.turnedBlocks, y: tally.y.turnedBlocks },
+    },
     airBitsPerSecond: o.symbolRate === undefined ? null : airBitsPerSecond(fx.gmi, fy.gmi, o.symbolRate),
     evmNormalization: o.evmNormalization,
     bitMetric: o.bitMetric,
@@ -599,6 +787,7 @@ function assemble(
 function figures(
   c: Constellation,
   counts: ErrorCount,
+  both: { uncorrected: ErrorCount; corrected: ErrorCount },
   errorEnergy: number,
   signalEnergy: number,
   gmi: number,
@@ -626,6 +815,22 @@ function figures(
     gmi,
     ngmi: gmi / c.bitsPerSymbol,
     mi,
+    uncorrected: errorFigures(both.uncorrected),
+    blockCorrected: errorFigures(both.corrected),
+  };
+}
+
+function errorFigures(counts: ErrorCount): ErrorFigures {
+  const ber = errorRatio(counts.bitErrors, counts.bits);
+  const ser = errorRatio(counts.symbolErrors, counts.symbols);
+  return {
+    ber: ber.ratio,
+    berCi95: ber.ci95,
+    berIsUpperBound: ber.isUpperBound,
+    bitErrors: counts.bitErrors,
+    ser: ser.ratio,
+    serCi95: ser.ci95,
+    symbolErrors: counts.symbolErrors,
   };
 }
 

@@ -1,4 +1,4 @@
-import { type ComplexArray, type DualPol, fft, OptionError } from '@intradyne/core';
+import { type ComplexArray, complexArray, type DualPol, fft, OptionError } from '@intradyne/core';
 import { circularCorrelation, foldOntoPeriod } from './correlation.js';
 
 /** A polarization name. */
@@ -40,21 +40,38 @@ export interface PolAlignment {
   readonly conjugated: boolean;
   /**
    * Normalized correlation peak ρ = |c[D]| / √(Σ|F|²·Σ|t|²) over the symbols
-   * used, in [0, 1]; 1/√(1 + 1/SNR) for a matched stream in AWGN.
+   * used, in [0, 1]; 1/√(1 + 1/SNR) for a matched stream in AWGN. With the
+   * 'differential' method: Σ_b |c_b| / √(Σ|r|²·Σ|t|²) at the delay found,
+   * c_b the correlation of block b of {@link SYNC_BLOCK_SYMBOLS} symbols
+   * (the same value for a stream without slips).
    */
   readonly correlation: number;
-  /** Peak over the rms of the correlation magnitude at all other delays. */
+  /** Peak over the rms of the correlation magnitude at all other delays (of the method's correlation). */
   readonly peakToFloor: number;
-  /** Phase of the peak left after the quarter turns, rad, in [−π/4, π/4]: a static carrier phase error. */
+  /**
+   * Phase of the peak left after the quarter turns, rad, in [−π/4, π/4]: a
+   * static carrier phase error (with the 'differential' method, that of the
+   * first block, as are the quarter turns).
+   */
   readonly residualPhaseRad: number;
   /** True when the peak passes both thresholds. */
   readonly found: boolean;
 }
 
+/**
+ * How the delays were found: 'coherent', the plain cross-correlation of the
+ * symbols; 'differential', the cross-correlation of adjacent-symbol products
+ * zₙ·z*ₙ₋₁, which a cycle slip or a slow phase drift does not disturb (tried
+ * when the coherent search does not find the reference).
+ */
+export type SyncMethod = 'coherent' | 'differential';
+
 /** The outcome of {@link synchronize}. */
 export interface SyncResult {
   /** True when the reference was found in both polarizations; when false, no metric may be reported. */
   readonly found: boolean;
+  /** How the delays were found (the coherent search first; the differential one when it failed). */
+  readonly method: SyncMethod;
   /** Why the reference was not found (null when found). */
   readonly reason: string | null;
   /** True when received x carries reference y and received y carries reference x. */
@@ -80,6 +97,15 @@ export interface SyncResult {
 
 /** Fewest symbols (used, and in the reference) for which the correlation statistics above hold. */
 export const MIN_SYNC_SYMBOLS = 128;
+
+/**
+ * Symbols per block of the differential method's block correlation, and of
+ * its first block, which sets the quarter turns: a cycle slip is at most one
+ * per few thousand symbols where a receiver works at all, and 512 symbols
+ * set a quadrant without doubt down to an SNR of 0 dB (the block sum is 512
+ * against a noise of about √512 ≈ 23).
+ */
+export const SYNC_BLOCK_SYMBOLS = 512;
 
 const NAME = 'synchronize';
 
@@ -112,6 +138,17 @@ interface Candidate {
  *
  * Delays are found per polarization: a 2×2 equalizer may leave x and y a few
  * symbols apart.
+ *
+ * Cycle slips of the carrier recovery rotate parts of the stream by
+ * multiples of π/2, so that their contributions to c[D] cancel: with enough
+ * of them no peak stands out. When the coherent search does not find the
+ * reference, the same search runs on the adjacent-symbol products
+ * dₙ = zₙ·z*ₙ₋₁ against tⱼ·t*ⱼ₋₁ (a constant rotation cancels in each
+ * product, so a slip spoils one product, not the rest of the stream; the
+ * conjugate of a stream has conjugate products): the peak gives the delay,
+ * the source and the conjugation, and the first block of
+ * {@link SYNC_BLOCK_SYMBOLS} symbols the quarter turns. `method` says which
+ * search found it.
  * @param received received symbols, Nr per polarization, any scale
  * @param reference transmitted symbols, Nt per polarization, any scale
  * @returns the findings; `found` is false (with a `reason`) when a peak fails a threshold
@@ -135,36 +172,48 @@ export function synchronize(received: DualPol, reference: DualPol, options: Sync
       `${NAME}: ${MIN_SYNC_SYMBOLS} received symbols are needed after skipping ${o.skipSymbols}, ${Math.max(used, 0)} remain`,
     );
   }
-  const refSpectra = { x: fft(reference.x), y: fft(reference.y) };
-  const refs = { x: reference.x, y: reference.y };
-  const best: Record<PolName, Record<PolName, Candidate>> = {
-    x: {} as Record<PolName, Candidate>,
-    y: {} as Record<PolName, Candidate>,
-  };
+  const coherent = assign(search(received, reference, o, used, 'coherent'), o);
+  if (coherent.reasons.length === 0) return result(coherent, 'coherent', nt, used, o);
+  const differential = assign(search(received, reference, o, used, 'differential'), o);
+  if (differential.reasons.length === 0) return result(differential, 'differential', nt, used, o);
+  return result(coherent, 'coherent', nt, used, o);
+}
+
+type Candidates = Record<PolName, Record<PolName, Candidate>>;
+
+/** The best candidate for every pair (received polarization, reference polarization), by one method. */
+function search(received: DualPol, reference: DualPol, o: Required<SyncOptions>, used: number, method: SyncMethod): Candidates {
+  const nt = reference.x.length >> 1;
+  const refs =
+    method === 'coherent' ? reference : { x: adjacentProducts(reference.x, true), y: adjacentProducts(reference.y, true) };
+  const refSpectra = { x: fft(refs.x), y: fft(refs.y) };
+  const best = { x: {}, y: {} } as Candidates;
   for (const p of ['x', 'y'] as const) {
-    const folded = foldOntoPeriod(received[p], o.skipSymbols, nt);
+    // The products start one symbol later: the first has no predecessor among the used symbols.
+    const stream = method === 'coherent' ? received[p] : adjacentProducts(received[p], false);
+    const start = method === 'coherent' ? o.skipSymbols : o.skipSymbols + 1;
+    const count = method === 'coherent' ? used : used - 1;
+    const folded = foldOntoPeriod(stream, start, nt);
     const foldedSpectrum = fft(folded);
     const foldedEnergy = energy(folded);
     for (const q of ['x', 'y'] as const) {
-      const plain = peak(
-        circularCorrelation(foldedSpectrum, refSpectra[q], false),
-        o.skipSymbols,
-        used,
-        foldedEnergy,
-        refs[q],
-        false,
-      );
-      const conj = peak(
-        circularCorrelation(foldedSpectrum, refSpectra[q], true),
-        o.skipSymbols,
-        used,
-        foldedEnergy,
-        refs[q],
-        true,
-      );
-      best[p][q] = conj.correlation > plain.correlation ? conj : plain;
+      const plain = peak(circularCorrelation(foldedSpectrum, refSpectra[q], false), start, count, foldedEnergy, refs[q], false);
+      const conj = peak(circularCorrelation(foldedSpectrum, refSpectra[q], true), start, count, foldedEnergy, refs[q], true);
+      const c = conj.correlation > plain.correlation ? conj : plain;
+      best[p][q] = method === 'coherent' ? c : blockCorrelation(c, received[p], reference[q], o.skipSymbols);
     }
   }
+  return best;
+}
+
+interface Assignment {
+  swapped: boolean;
+  perPol: Record<PolName, PolAlignment>;
+  reasons: string[];
+}
+
+/** The consistent assignment (straight or swapped) with the larger peaks, and why a polarization was not found. */
+function assign(best: Candidates, o: Required<SyncOptions>): Assignment {
   const straight = best.x.x.correlation + best.y.y.correlation;
   const crossed = best.x.y.correlation + best.y.x.correlation;
   // Swap only on a clear margin: a tie means both assignments measure the same.
@@ -188,17 +237,85 @@ export function synchronize(received: DualPol, reference: DualPol, options: Sync
     }
     reasons.push(why);
   }
+  return { swapped, perPol, reasons };
+}
+
+function result(a: Assignment, method: SyncMethod, nt: number, used: number, o: Required<SyncOptions>): SyncResult {
   return {
-    found: reasons.length === 0,
-    reason: reasons.length === 0 ? null : reasons.join('; '),
-    swapped,
-    perPol,
+    found: a.reasons.length === 0,
+    method,
+    reason: a.reasons.length === 0 ? null : a.reasons.join('; '),
+    swapped: a.swapped,
+    perPol: a.perPol,
     referenceLength: nt,
     symbolsUsed: used,
     skipSymbols: o.skipSymbols,
     minCorrelation: o.minCorrelation,
     minPeakToFloor: o.minPeakToFloor,
   };
+}
+
+/**
+ * dₙ = zₙ·z*ₙ₋₁ for every n (d₀ = 0 for a stream; z₀·z*_{N−1} for a
+ * periodic reference, `circular`).
+ */
+function adjacentProducts(z: ComplexArray, circular: boolean): ComplexArray {
+  const n = z.length >> 1;
+  const d = complexArray(n);
+  for (let k = circular ? 0 : 1; k < n; k++) {
+    const j = k === 0 ? n - 1 : k - 1;
+    const ar = z[2 * k];
+    const ai = z[2 * k + 1];
+    const br = z[2 * j];
+    const bi = z[2 * j + 1];
+    d[2 * k] = ar * br + ai * bi;
+    d[2 * k + 1] = ai * br - ar * bi;
+  }
+  return d;
+}
+
+/**
+ * A differential candidate made usable: at its delay, the block correlation
+ * Σ_b |c_b| / √(Σ|r|²·Σ|t|²) (blocks of {@link SYNC_BLOCK_SYMBOLS} from the
+ * first used symbol) as its correlation, and the first block's c₀ as its
+ * phase (the quarter turns and residual phase).
+ */
+function blockCorrelation(c: Candidate, rx: ComplexArray, ref: ComplexArray, start: number): Candidate {
+  const n = rx.length >> 1;
+  const nt = ref.length >> 1;
+  const sign = c.conjugated ? -1 : 1;
+  let j = (((start - c.delay) % nt) + nt) % nt;
+  let blockRe = 0;
+  let blockIm = 0;
+  let firstRe = 0;
+  let firstIm = 0;
+  let magnitudes = 0;
+  let rxEnergy = 0;
+  let refEnergy = 0;
+  for (let k = start, inBlock = 0; k < n; k++) {
+    const zr = rx[2 * k];
+    const zi = rx[2 * k + 1];
+    const tr = ref[2 * j];
+    const ti = sign * ref[2 * j + 1];
+    // z·conj(t)
+    blockRe += zr * tr + zi * ti;
+    blockIm += zi * tr - zr * ti;
+    rxEnergy += zr * zr + zi * zi;
+    refEnergy += tr * tr + ti * ti;
+    if (++j === nt) j = 0;
+    if (++inBlock === SYNC_BLOCK_SYMBOLS || k === n - 1) {
+      if (k - start < SYNC_BLOCK_SYMBOLS) {
+        firstRe = blockRe;
+        firstIm = blockIm;
+      }
+      magnitudes += Math.hypot(blockRe, blockIm);
+      blockRe = 0;
+      blockIm = 0;
+      inBlock = 0;
+    }
+  }
+  const norm = Math.sqrt(rxEnergy * refEnergy);
+  return { ...c, re: firstRe, im: firstIm, correlation: norm > 0 ? Math.min(1, magnitudes / norm) : 0 };
 }
 
 function alignment(source: PolName, c: Candidate, o: Required<SyncOptions>): PolAlignment {
