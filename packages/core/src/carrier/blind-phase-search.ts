@@ -1,6 +1,6 @@
 import type { Constellation } from '../modulation/constellation.js';
 import type { ComplexArray } from '../signal/complex.js';
-import { type PhaseKernel, runKernel } from './phase-kernel.js';
+import { type PairPhaseKernel, type PhaseKernel, runKernel } from './phase-kernel.js';
 import { QUARTER_TURN, unwrapPhase, wrapAngle } from './phase-unwrap.js';
 
 /** Options of the blind-phase-search estimator. */
@@ -46,9 +46,13 @@ export interface BlindPhaseSearchOptions {
  * outer levels (measured: the kernel runs about 2× faster). Distances are in
  * level units, a constant factor 1/scale² from unit power, which changes no
  * argmin.
+ *
+ * {@link pushPair} estimates one phase from both polarizations (the laser
+ * phase is common to them): d_{i,b} is then the sum of the two symbols'
+ * distances, so the window holds twice the symbols for the same tracking.
  * @example const phase = runKernel(new BlindPhaseSearchKernel(constellation('16qam'), { testPhases: 32, halfWindow: 12 }), symbols.x);
  */
-export class BlindPhaseSearchKernel implements PhaseKernel {
+export class BlindPhaseSearchKernel implements PairPhaseKernel {
   readonly delay: number;
   private readonly b: number;
   private readonly len: number;
@@ -112,17 +116,63 @@ export class BlindPhaseSearchKernel implements PhaseKernel {
         ring[row + k] = d;
       }
     } else {
-      for (let k = 0; k < b; k++) {
-        sums[k] -= ring[row + k];
-        ring[row + k] = 0;
-      }
+      this.clearSlot(row);
     }
+    return this.advance();
+  }
+
+  /**
+   * Feeds one symbol of each polarization, both at the same carrier phase
+   * (the y symbol already turned by any phase difference between the
+   * equalizer's outputs), and returns their common phase, as {@link push}
+   * does for one: the distances of the two symbols add.
+   */
+  pushPair(xr: number, xi: number, yr: number, yi: number, present: boolean): number {
+    const row = this.slot * this.b;
+    const ring = this.ring;
+    const sums = this.sums;
+    const cosB = this.cosB;
+    const sinB = this.sinB;
+    const inv = this.inv;
+    const h1 = this.fold[0];
+    const h2 = this.fold[1];
+    const h3 = this.fold[2];
+    const b = this.b;
+    if (present) {
+      for (let k = 0; k < b; k++) {
+        const c = cosB[k];
+        const s = sinB[k];
+        const ax = Math.abs(Math.abs(Math.abs(Math.abs((xr * c - xi * s) * inv) - h1) - h2) - h3);
+        const ay = Math.abs(Math.abs(Math.abs(Math.abs((xr * s + xi * c) * inv) - h1) - h2) - h3);
+        const bx = Math.abs(Math.abs(Math.abs(Math.abs((yr * c - yi * s) * inv) - h1) - h2) - h3);
+        const by = Math.abs(Math.abs(Math.abs(Math.abs((yr * s + yi * c) * inv) - h1) - h2) - h3);
+        const d = ax * ax + ay * ay + bx * bx + by * by;
+        sums[k] += d - ring[row + k];
+        ring[row + k] = d;
+      }
+    } else {
+      this.clearSlot(row);
+    }
+    return this.advance();
+  }
+
+  /** An absent symbol: the oldest distances leave the window and nothing enters. */
+  private clearSlot(row: number): void {
+    for (let k = 0; k < this.b; k++) {
+      this.sums[k] -= this.ring[row + k];
+      this.ring[row + k] = 0;
+    }
+  }
+
+  /** Moves the window on one symbol and returns the unwrapped argmin phase of its centre (NaN while filling). */
+  private advance(): number {
     this.slot = this.slot + 1 === this.len ? 0 : this.slot + 1;
     this.pushed++;
     if (this.pushed <= this.delay) return Number.NaN;
+    const sums = this.sums;
     let best = 0;
     let least = sums[0];
-    for (let k = 1; k < b; k++) {
+    for (let k = 1; k < this.b; k++) {
       const v = sums[k];
       if (v < least) {
         least = v;

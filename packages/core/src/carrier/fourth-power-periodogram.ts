@@ -18,11 +18,23 @@ export interface PeriodogramOptions {
  *
  * Raising the symbols to the fourth power removes the square-QAM modulation
  * (E[a⁴] ≠ 0, a negative real number for QPSK, 16QAM and 64QAM) and leaves a
- * tone at 4Δf:
+ * tone at 4Δf. With one polarization:
  *
- *   P(ν) = Σ_pol |Σₙ rₙ⁴·e^(−j2πνn)|²,   Δf = Rs·argmax_ν P(ν) / 4
+ *   P(ν) = |Σₙ xₙ⁴·e^(−j2πνn)|²,   Δf = Rs·argmax_ν P(ν) / 4
  *
- * Both polarizations see the same lasers, so their periodograms are added.
+ * With two, the received x and y are a unitary mix of the two transmitted
+ * ones (x = α·a₁ + β·a₂, …), and the tones of x⁴ and y⁴ alone fade together
+ * for some polarization states (E x⁴ ∝ α⁴ + β⁴, which vanishes for
+ * |α| = |β| and arg(α/β) = π/4): the estimate then locks on a noise peak.
+ * Every fourth-order product of the pair is used instead, with the weights
+ * of the symmetric tensor E[zᵢzⱼzₖzₗ]:
+ *
+ *   P(ν) = |X⁴|² + 4|X³Y|² + 6|X²Y²|² + 4|XY³|² + |Y⁴|²,   X³Y(ν) = Σₙ xₙ³yₙ·e^(−j2πνn), …
+ *
+ * the squared norm of that tensor's spectrum at ν, which a unitary mix does
+ * not change (Σ_{ijkl} |Σ_s κ_s U_is U_js U_ks U_ls|² = Σ_s |κ_s|² for
+ * orthonormal columns of U): the tone has the same height whatever the
+ * polarization state. Both polarizations see the same lasers.
  * The coarse peak comes from a zero-padded FFT; the sub-bin interpolation
  * then maximizes the continuous periodogram P(ν) (the DTFT, evaluated
  * directly) by golden-section search between the neighbouring padded bins,
@@ -54,15 +66,15 @@ export function estimateOffsetPeriodogram(
   if (!Number.isInteger(padding) || padding < 1 || padding > 16 || (padding & (padding - 1)) !== 0)
     throw new RangeError(`estimateOffsetPeriodogram: expected a padding of 1, 2, 4, 8 or 16, received ${padding}`);
 
-  const pols = y ? [fourthPower(x), fourthPower(y)] : [fourthPower(x)];
+  const pols = y ? fourthOrderProducts(x, y) : [{ z: fourthPower(x), weight: 1 }];
   const size = nextPowerOfTwo(n) * padding;
   const power = new Float64Array(size);
   const padded = complexArray(size);
-  for (const z of pols) {
+  for (const { z, weight } of pols) {
     padded.fill(0);
     padded.set(z);
     const Z = fft(padded);
-    for (let k = 0; k < size; k++) power[k] += Z[2 * k] * Z[2 * k] + Z[2 * k + 1] * Z[2 * k + 1];
+    for (let k = 0; k < size; k++) power[k] += weight * (Z[2 * k] * Z[2 * k] + Z[2 * k + 1] * Z[2 * k + 1]);
   }
   let peak = 0;
   for (let k = 1; k < size; k++) if (power[k] > power[peak]) peak = k;
@@ -98,6 +110,43 @@ export function estimateOffsetPeriodogram(
   return (nu * symbolRate) / 4;
 }
 
+/** A product sequence and its weight in the periodogram. */
+interface WeightedProduct {
+  readonly z: ComplexArray;
+  readonly weight: number;
+}
+
+/** x⁴, x³y, x²y², xy³, y⁴ with the multiplicities 1, 4, 6, 4, 1 of the symmetric fourth-order tensor. */
+function fourthOrderProducts(x: ComplexArray, y: ComplexArray): WeightedProduct[] {
+  const n = x.length >> 1;
+  const out = [complexArray(n), complexArray(n), complexArray(n), complexArray(n), complexArray(n)];
+  for (let k = 0; k < n; k++) {
+    const ar = x[2 * k];
+    const ai = x[2 * k + 1];
+    const br = y[2 * k];
+    const bi = y[2 * k + 1];
+    // x², xy, y²
+    const x2r = ar * ar - ai * ai;
+    const x2i = 2 * ar * ai;
+    const xyr = ar * br - ai * bi;
+    const xyi = ar * bi + ai * br;
+    const y2r = br * br - bi * bi;
+    const y2i = 2 * br * bi;
+    product(out[0], k, x2r, x2i, x2r, x2i);
+    product(out[1], k, x2r, x2i, xyr, xyi);
+    product(out[2], k, x2r, x2i, y2r, y2i);
+    product(out[3], k, xyr, xyi, y2r, y2i);
+    product(out[4], k, y2r, y2i, y2r, y2i);
+  }
+  return [1, 4, 6, 4, 1].map((weight, i) => ({ z: out[i], weight }));
+}
+
+/** z[k] = p·q. */
+function product(z: ComplexArray, k: number, pr: number, pi: number, qr: number, qi: number): void {
+  z[2 * k] = pr * qr - pi * qi;
+  z[2 * k + 1] = pr * qi + pi * qr;
+}
+
 function fourthPower(r: ComplexArray): ComplexArray {
   const n = r.length >> 1;
   const z = complexArray(n);
@@ -113,14 +162,14 @@ function fourthPower(r: ComplexArray): ComplexArray {
   return z;
 }
 
-// P(ν) = Σ_pol |Σₙ zₙ·e^(−j2πνn)|². The phasor is advanced by multiplication
+// P(ν) = Σ weight·|Σₙ zₙ·e^(−j2πνn)|². The phasor is advanced by multiplication
 // and recomputed exactly every 256 samples so that rounding cannot build up.
-function dtftPower(pols: readonly ComplexArray[], nu: number): number {
+function dtftPower(pols: readonly WeightedProduct[], nu: number): number {
   const w = -2 * Math.PI * nu;
   const stepRe = Math.cos(w);
   const stepIm = Math.sin(w);
   let total = 0;
-  for (const z of pols) {
+  for (const { z, weight } of pols) {
     const n = z.length >> 1;
     let sr = 0;
     let si = 0;
@@ -139,7 +188,7 @@ function dtftPower(pols: readonly ComplexArray[], nu: number): number {
       pi = pr * stepIm + pi * stepRe;
       pr = t;
     }
-    total += sr * sr + si * si;
+    total += weight * (sr * sr + si * si);
   }
   return total;
 }

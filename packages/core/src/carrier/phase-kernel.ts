@@ -24,6 +24,19 @@ export interface PhaseKernel {
 }
 
 /**
+ * A {@link PhaseKernel} that can also estimate one phase from the symbols of
+ * both polarizations at once (the lasers' phase is common to them).
+ */
+export interface PairPhaseKernel extends PhaseKernel {
+  /**
+   * Feeds symbol n of each polarization, both at the same carrier phase (y
+   * already turned by the phase difference between the polarizations).
+   * @returns the unwrapped common phase of symbol n − delay (rad), or NaN while n < delay
+   */
+  pushPair(xr: number, xi: number, yr: number, yi: number, present: boolean): number;
+}
+
+/**
  * Drives a kernel over a whole array (one polarization) and drains it.
  * @param symbols N complex symbols
  * @returns N unwrapped phases, rad

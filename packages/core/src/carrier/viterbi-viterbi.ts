@@ -1,6 +1,6 @@
 import type { Constellation } from '../modulation/constellation.js';
 import type { ComplexArray } from '../signal/complex.js';
-import { type PhaseKernel, runKernel } from './phase-kernel.js';
+import { type PairPhaseKernel, runKernel } from './phase-kernel.js';
 import { QUARTER_TURN, unwrapPhase } from './phase-unwrap.js';
 
 /** Which symbols enter the fourth-power sum. */
@@ -40,9 +40,12 @@ export interface ViterbiViterbiOptions {
  * θₖ = θ̂ₖ + (π/2)·round((θₖ₋₁ − θ̂ₖ)/(π/2)). The window sum is kept as a
  * running sum, so the cost per symbol does not depend on N. Symbols outside
  * the stream count as zero (a shorter window at both ends).
+ *
+ * {@link pushPair} estimates one phase from both polarizations: both
+ * symbols' fourth powers enter the same sum.
  * @example const phase = runKernel(new ViterbiViterbiKernel(constellation('qpsk'), { halfWindow: 16 }), symbols.x);
  */
-export class ViterbiViterbiKernel implements PhaseKernel {
+export class ViterbiViterbiKernel implements PairPhaseKernel {
   readonly delay: number;
   private readonly len: number;
   private readonly exponent: number;
@@ -54,6 +57,8 @@ export class ViterbiViterbiKernel implements PhaseKernel {
   /** Which window entries are selected symbols, and how many. */
   private readonly ringSel: Uint8Array;
   private selectedInWindow = 0;
+  /** The new window entry being built: Σ weighted z⁴ (re, im) and the count of selected symbols. */
+  private readonly term = new Float64Array(3);
   private sumRe = 0;
   private sumIm = 0;
   private slot = 0;
@@ -81,28 +86,58 @@ export class ViterbiViterbiKernel implements PhaseKernel {
   }
 
   push(re: number, im: number, present: boolean): number {
-    let zr = 0;
-    let zi = 0;
-    let sel = 0;
+    const t = this.term;
+    t[0] = 0;
+    t[1] = 0;
+    t[2] = 0;
+    if (present) this.addTerm(re, im);
+    return this.advance();
+  }
+
+  /**
+   * Feeds one symbol of each polarization, both at the same carrier phase (y
+   * already turned by the phase difference between the polarizations), and
+   * returns their common phase: both fourth powers enter the window's sum.
+   */
+  pushPair(xr: number, xi: number, yr: number, yi: number, present: boolean): number {
+    const t = this.term;
+    t[0] = 0;
+    t[1] = 0;
+    t[2] = 0;
     if (present) {
-      const p2 = re * re + im * im;
-      const rho = Math.sqrt(p2);
-      let ring = 0;
-      while (ring < this.bounds.length && rho > this.bounds[ring]) ring++;
-      if (this.selected[ring] === 1) {
-        sel = 1;
-        // r⁴ = (r²)², weighted by ρ^(p−4) for another amplitude law.
-        const sr = re * re - im * im;
-        const si = 2 * re * im;
-        zr = sr * sr - si * si;
-        zi = 2 * sr * si;
-        if (this.exponent !== 4 && p2 > 0) {
-          const g = rho ** (this.exponent - 4);
-          zr *= g;
-          zi *= g;
-        }
-      }
+      this.addTerm(xr, xi);
+      this.addTerm(yr, yi);
     }
+    return this.advance();
+  }
+
+  /** Adds a symbol's weighted fourth power, and whether it was selected, to the new window entry. */
+  private addTerm(re: number, im: number): void {
+    const p2 = re * re + im * im;
+    const rho = Math.sqrt(p2);
+    let ring = 0;
+    while (ring < this.bounds.length && rho > this.bounds[ring]) ring++;
+    if (this.selected[ring] !== 1) return;
+    // r⁴ = (r²)², weighted by ρ^(p−4) for another amplitude law.
+    const sr = re * re - im * im;
+    const si = 2 * re * im;
+    let zr = sr * sr - si * si;
+    let zi = 2 * sr * si;
+    if (this.exponent !== 4 && p2 > 0) {
+      const g = rho ** (this.exponent - 4);
+      zr *= g;
+      zi *= g;
+    }
+    this.term[0] += zr;
+    this.term[1] += zi;
+    this.term[2]++;
+  }
+
+  /** Moves the window on by the new entry and returns the unwrapped phase of its centre (NaN while filling). */
+  private advance(): number {
+    const zr = this.term[0];
+    const zi = this.term[1];
+    const sel = this.term[2];
     // Sₖ ← Sₖ₋₁ + z_new − z_oldest
     this.sumRe += zr - this.ringRe[this.slot];
     this.sumIm += zi - this.ringIm[this.slot];

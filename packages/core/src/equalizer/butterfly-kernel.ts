@@ -218,6 +218,84 @@ export function separationIndex(m2: number, m4: number, kurtosis: number): numbe
   return (m4 - 2 * m2 * m2) / ((kurtosis - 2) * m2 * m2);
 }
 
+/**
+ * How far two equalizer outputs are from carrying one independent source
+ * each, from their fourth-order cumulants at small lags. For outputs u and
+ * v (x or y) and a lag ℓ,
+ *
+ *   c(u, v, ℓ) = cum(uₖ, u*ₖ, vₖ₊ℓ, v*ₖ₊ℓ) / ((κ − 2)·E|u|²·E|v|²),
+ *   cum(a, a*, b, b*) = E|a|²|b|² − E|a|²·E|b|² − |E a·b*|² − |E a·b|²
+ *
+ * (κ = E|a|⁴ of the unit-power constellation). Writing each output as
+ * Σᵢ gᵢ·sᵢ + noise over the independent source symbols sᵢ (both
+ * polarizations, all delays), c(u, v, ℓ) = Σᵢ |g_{u,i}|²·|g_{v,i−ℓ}|² / (P_u·P_v):
+ * zero unless one source symbol appears in both u and v(ℓ), whatever the
+ * Gaussian noise (whose fourth cumulants vanish). So the largest of
+ * c(x, y, ℓ) for |ℓ| ≤ maxLag and c(x, x, ℓ), c(y, y, ℓ) for 1 ≤ ℓ ≤ maxLag
+ * is 0 for separated outputs free of inter-symbol interference at any SNR,
+ * ½·sin²2φ for a unitary mix of the polarizations by φ, and ¼ for an
+ * output that sums two adjacent symbols (the equalizer sampling between
+ * symbols). Cumulants as a measure of dependence: Comon, "Independent
+ * component analysis, a new concept?", Signal Processing 36(3), 1994
+ * (*from memory*); its sampling spread over N symbols is about
+ * 1.7/(|κ − 2|·√N).
+ * @param x N outputs of x, in order (interleaved complex); y the same of y
+ * @param n N
+ * @param kurtosis κ
+ * @param maxLag largest lag looked at, symbols
+ * @returns the largest |c|, ≥ 0 (0 for n ≤ maxLag)
+ * @example outputDependence(x, y, 8192, 1.32, 2) < 0.15 // the 16QAM outputs each carry one source
+ */
+export function outputDependence(x: Float64Array, y: Float64Array, n: number, kurtosis: number, maxLag: number): number {
+  if (n <= maxLag) return 0;
+  let worst = 0;
+  for (let lag = -maxLag; lag <= maxLag; lag++) {
+    worst = Math.max(worst, Math.abs(laggedCumulant(x, y, n, lag, kurtosis)));
+    if (lag > 0) {
+      worst = Math.max(worst, Math.abs(laggedCumulant(x, x, n, lag, kurtosis)));
+      worst = Math.max(worst, Math.abs(laggedCumulant(y, y, n, lag, kurtosis)));
+    }
+  }
+  return worst;
+}
+
+/** c(u, v, ℓ) of {@link outputDependence} over the symbols where both uₖ and vₖ₊ℓ exist. */
+function laggedCumulant(u: Float64Array, v: Float64Array, n: number, lag: number, kurtosis: number): number {
+  const from = Math.max(0, -lag);
+  const to = Math.min(n, n - lag);
+  const m = to - from;
+  let pu = 0;
+  let pv = 0;
+  let puv = 0;
+  let cr = 0;
+  let ci = 0;
+  let sr = 0;
+  let si = 0;
+  for (let k = from; k < to; k++) {
+    const i = 2 * k;
+    const j = 2 * (k + lag);
+    const ar = u[i];
+    const ai = u[i + 1];
+    const br = v[j];
+    const bi = v[j + 1];
+    const a2 = ar * ar + ai * ai;
+    const b2 = br * br + bi * bi;
+    pu += a2;
+    pv += b2;
+    puv += a2 * b2;
+    // a·b* and a·b
+    cr += ar * br + ai * bi;
+    ci += ai * br - ar * bi;
+    sr += ar * br - ai * bi;
+    si += ar * bi + ai * br;
+  }
+  pu /= m;
+  pv /= m;
+  if (!(pu > 0 && pv > 0)) return 0;
+  const cum = puv / m - pu * pv - (cr * cr + ci * ci) / (m * m) - (sr * sr + si * si) / (m * m);
+  return cum / ((kurtosis - 2) * pu * pv);
+}
+
 /** Numbers per symbol in the output scratch of the adapting kernels: x̂re, x̂im, ŷre, ŷim, cost x, cost y. */
 export const ADAPT_STRIDE = 6;
 

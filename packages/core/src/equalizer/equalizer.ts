@@ -7,11 +7,13 @@ import {
   ADAPT_STRIDE,
   adaptRadial,
   adaptWithRule,
+  butterflyOutput,
   deriveOrthogonalRow,
   FILTER_XX,
   FILTER_XY,
   FILTER_YX,
   FILTER_YY,
+  outputDependence,
   rowOrthogonality,
   separationIndex,
 } from './butterfly-kernel.js';
@@ -87,8 +89,16 @@ export interface EqualizerOptions {
   };
   /** Tap update every n-th symbol (default 1); the error is still computed on every symbol. */
   readonly updateEvery?: number;
-  /** 'centre-spike' (default: hxx = hyy = δ at the centre tap) or given taps, L complex taps each. */
-  readonly initialTaps?: 'centre-spike' | ButterflyTaps;
+  /** Where the adaptation starts: a named start (default 'centre-spike', see {@link EqualizerStart}) or given taps, L complex taps each. */
+  readonly initialTaps?: EqualizerStart | ButterflyTaps;
+  /**
+   * Starts tried in turn when the passes over the start of the capture end
+   * with singular taps or outputs that do not carry one source each (see
+   * `convergence`): the adaptation is run again from each until one
+   * separates, and the best attempt is kept (default ['rotated',
+   * 'circular']; [] never retries). Needs `convergeOnStart.passes` > 0.
+   */
+  readonly retryStarts?: readonly EqualizerStart[];
   /**
    * Decision-directed LMS after the blind rules, with its own carrier-phase
    * loop (see {@link ddLmsRule}); absent: no DD-LMS. `startSymbol` counts
@@ -122,22 +132,60 @@ export interface EqualizerOptions {
   };
   /**
    * Convergence verdict over the last `window` output symbols (default
-   * 2048): converged when the separation index of both outputs is at least
-   * `threshold` (default 0.7: a perfectly equalized output passes down to an
-   * SNR of 7.1 dB, an output mixing the polarizations by more than 25° fails)
-   * and the taps are not singular.
+   * 8192): converged when the taps are not singular, the outputs each
+   * carry one source ({@link outputDependence} at lags up to 2 symbols at
+   * most `dependence`, default 0.15: a polarization mix beyond 17° or an
+   * output sampled between symbols fails at any SNR, while separated outputs
+   * stay below 0.06 from sampling spread alone), and the separation index of
+   * both outputs is at least `threshold` (default 0.1: a perfectly equalized
+   * output has (s/(1 + s))², so this only rejects outputs that are mostly
+   * noise, below an SNR of −3.4 dB).
    */
   readonly convergence?: {
-    /** Output symbols the verdict looks at (default 2048). */
+    /** Output symbols the verdict looks at (default 8192). */
     readonly window?: number;
-    /** Least separation index of both outputs, 0…1 (default 0.7). */
+    /** Least separation index of both outputs, 0…1 (default 0.1). */
     readonly threshold?: number;
+    /** Largest dependence of the outputs, 0…1 (default 0.15). */
+    readonly dependence?: number;
   };
   /**
    * Symbols per point of the error trace at its start (default 256); the
    * trace keeps at most 2048 points and halves its resolution when full.
    */
   readonly traceEvery?: number;
+}
+
+/**
+ * A named start of the adaptation: 'centre-spike' passes each input
+ * polarization to its own output (hxx = hyy = δ); 'rotated' starts from a
+ * 45° rotation, hxx = hxy = hyy = δ/√2, hyx = −δ/√2; 'circular' from the
+ * 45° rotation about the other axis, hxx = hyy = δ/√2, hxy = hyx = j·δ/√2
+ * (δ at the centre tap). Blind adaptation from a start near the
+ * polarization state that makes CMA's outputs collapse onto one source
+ * tends to stay there; the others are far from it.
+ */
+export type EqualizerStart = 'centre-spike' | 'rotated' | 'circular';
+
+/** The named starts, in the order they are documented. */
+export const EQUALIZER_STARTS: readonly EqualizerStart[] = ['centre-spike', 'rotated', 'circular'];
+
+/** What one run of the passes over the start of the capture gave (see {@link EqualizerOptions.retryStarts}). */
+export interface EqualizerAttempt {
+  /** The start: a name, or 'given' for taps passed in the options. */
+  readonly start: EqualizerStart | 'given';
+  /** The taps' row orthogonality after the passes (see `singularity`). */
+  readonly rowOrthogonality: number;
+  /** Singular by the `singularity` threshold. */
+  readonly singular: boolean;
+  /** {@link outputDependence} of the outputs over the start with the taps after the passes. */
+  readonly dependence: number;
+  /** Separation index of the x output over the start. */
+  readonly separationX: number;
+  /** Separation index of the y output over the start. */
+  readonly separationY: number;
+  /** Whether it passed the convergence criteria over the start. */
+  readonly separated: boolean;
 }
 
 /** One step of the equalizer's schedule. */
@@ -184,6 +232,17 @@ export interface EqualizerDiagnostics {
   };
   /** The taps now. */
   readonly finalTaps: ButterflyTaps;
+  /**
+   * The runs of the passes over the start, in order, and which one the
+   * stream continued from (empty before the start is adapted, or with
+   * `convergeOnStart.passes` = 0).
+   */
+  readonly start: {
+    /** Every attempt made. */
+    readonly attempts: readonly EqualizerAttempt[];
+    /** Index in `attempts` of the one kept (−1 before the start is adapted). */
+    readonly chosen: number;
+  };
   /** The convergence verdict (see {@link EqualizerOptions.convergence}). */
   readonly convergence: {
     /** Both outputs separated and the taps not singular. */
@@ -192,10 +251,14 @@ export interface EqualizerDiagnostics {
     readonly separationX: number;
     /** Separation index of the y output over the same symbols. */
     readonly separationY: number;
+    /** {@link outputDependence} of the two outputs over the same symbols: 0 when each carries one source. */
+    readonly dependence: number;
     /** Output symbols looked at. */
     readonly window: number;
     /** Least separation index accepted. */
     readonly threshold: number;
+    /** Largest dependence accepted. */
+    readonly dependenceThreshold: number;
     /** The criterion in words, for reports. */
     readonly criterion: string;
   };
@@ -238,9 +301,12 @@ const CHECK_BAND = 0.4;
 const ACQUIRE_SYMBOLS = 256;
 
 const SEPARATION_CRITERION =
-  'separation index σ = (E|z|⁴ − 2(E|z|²)²)/((E|a|⁴ − 2)(E|z|²)²) of both outputs over the last window of output symbols ' +
-  'at least the threshold, and the taps not singular (σ is 1 for a separated noiseless output, 0.5 for an equal ' +
-  'polarization mix, (s/(1+s))² for a perfect output at SNR s; Shalvi & Weinstein 1990)';
+  'over the last window of output symbols: the fourth-order cumulants between the outputs, and of each output with ' +
+  'itself 1–2 symbols later, normalized (dependence; 0 when each output carries one source, at any SNR) at most its ' +
+  'threshold; the separation index σ = (E|z|⁴ − 2(E|z|²)²)/((E|a|⁴ − 2)(E|z|²)²) of both outputs ((s/(1+s))² for a ' +
+  'perfect output at SNR s; Shalvi & Weinstein 1990) at least its threshold; and the taps not singular';
+/** Lags, in symbols, of the dependence measure. */
+const DEPENDENCE_LAGS = 2;
 const SINGULARITY_CRITERION =
   'mean over 17 frequencies |f| ≤ 0.4·Rs of |det H(f)|/(‖row x‖·‖row y‖) of the equalizer response below the threshold';
 
@@ -292,13 +358,15 @@ interface Resolved {
   startSymbols: number;
   passes: number;
   updateEvery: number;
-  initialTaps: 'centre-spike' | ButterflyTaps;
+  initialTaps: EqualizerStart | ButterflyTaps;
+  retryStarts: readonly EqualizerStart[];
   dd: { startSymbol: number; phaseLoop: PhaseLoopGains } | null;
   orthogonalStart: boolean;
   restart: boolean;
   singularThreshold: number;
   window: number;
   convergenceThreshold: number;
+  dependenceThreshold: number;
   traceEvery: number;
 }
 
@@ -339,6 +407,10 @@ class ButterflyEqualizer implements Stage<'twoSps', 'symbols', EqualizerDiagnost
   private sampleRate!: number;
 
   // Adaptation state.
+  private attempts!: EqualizerAttempt[];
+  private chosen!: number;
+  /** True while the passes over the start run: the taps are judged after them, not re-derived during them. */
+  private inStartPasses!: boolean;
   private adapted!: number;
   private restarts!: number;
   private currentRule!: string;
@@ -346,7 +418,7 @@ class ButterflyEqualizer implements Stage<'twoSps', 'symbols', EqualizerDiagnost
   private readonly trace = new DecimatedTrace(4, EQUALIZER_TRACE_POINTS);
   /** Running sums over the current trace interval: cost x, cost y, |x̂|², |x̂|⁴, |ŷ|², |ŷ|⁴. */
   private readonly acc = new Float64Array(6);
-  /** |z|² of the last `window` output symbols, per polarization (ring buffers). */
+  /** The last `window` output symbols, per polarization (interleaved complex ring buffers). */
   private windowX!: Float64Array;
   private windowY!: Float64Array;
   private windowFill!: number;
@@ -395,10 +467,10 @@ class ButterflyEqualizer implements Stage<'twoSps', 'symbols', EqualizerDiagnost
 
   reset(): void {
     const o = this.o;
-    this.setInitialTaps();
-    this.preRule.reset();
-    this.blind.reset();
-    this.dd?.reset();
+    this.restartAdaptation(o.initialTaps);
+    this.attempts = [];
+    this.chosen = -1;
+    this.inStartPasses = false;
     this.collecting = o.passes > 0;
     this.collectX = new Float64Array(0);
     this.collectY = new Float64Array(0);
@@ -409,13 +481,8 @@ class ButterflyEqualizer implements Stage<'twoSps', 'symbols', EqualizerDiagnost
     this.received = 0;
     this.nextSymbol = 0;
     this.sampleRate = Number.NaN;
-    this.adapted = 0;
-    this.restarts = 0;
-    this.currentRule = 'none';
-    this.trace.reset();
-    this.acc.fill(0);
-    this.windowX = new Float64Array(o.window);
-    this.windowY = new Float64Array(o.window);
+    this.windowX = new Float64Array(2 * o.window);
+    this.windowY = new Float64Array(2 * o.window);
     this.windowFill = 0;
     this.windowPos = 0;
   }
@@ -425,9 +492,11 @@ class ButterflyEqualizer implements Stage<'twoSps', 'symbols', EqualizerDiagnost
     const L = this.L;
     const rho = rowOrthogonality(this.taps, L, CHECK_POINTS, CHECK_BAND);
     const singular = !(rho >= o.singularThreshold);
-    const sepX = this.windowSeparation(this.windowX);
-    const sepY = this.windowSeparation(this.windowY);
-    const converged = !singular && sepX >= o.convergenceThreshold && sepY >= o.convergenceThreshold;
+    const { x: wx, y: wy, n: wn } = this.windowInOrder();
+    const sepX = outputSeparation(wx, wn, this.kurtosis);
+    const sepY = outputSeparation(wy, wn, this.kurtosis);
+    const dependence = outputDependence(wx, wy, wn, this.kurtosis, DEPENDENCE_LAGS);
+    const converged = !singular && this.separated(sepX, sepY, dependence);
     const filter = (offset: number) => this.taps.slice(offset * L, offset * L + 2 * L) as ComplexArray;
     const phases: EqualizerPhase[] = [];
     if (o.pre > 0) phases.push({ rule: 'cma', fromSymbol: 0, orthogonalY: o.orthogonalStart });
@@ -450,12 +519,15 @@ class ButterflyEqualizer implements Stage<'twoSps', 'symbols', EqualizerDiagnost
         separationY: trace.series[3],
       },
       finalTaps: { xx: filter(FILTER_XX), xy: filter(FILTER_XY), yx: filter(FILTER_YX), yy: filter(FILTER_YY) },
+      start: { attempts: this.attempts.slice(), chosen: this.chosen },
       convergence: {
         converged,
         separationX: sepX,
         separationY: sepY,
+        dependence,
         window: o.window,
         threshold: o.convergenceThreshold,
+        dependenceThreshold: o.dependenceThreshold,
         criterion: SEPARATION_CRITERION,
       },
       singularity: {
@@ -480,8 +552,8 @@ class ButterflyEqualizer implements Stage<'twoSps', 'symbols', EqualizerDiagnost
   describe(): StageRecord {
     const o = this.o;
     const taps: JsonValue =
-      o.initialTaps === 'centre-spike'
-        ? 'centre-spike'
+      typeof o.initialTaps === 'string'
+        ? o.initialTaps
         : {
             xx: Array.from(o.initialTaps.xx),
             xy: Array.from(o.initialTaps.xy),
@@ -499,28 +571,54 @@ class ButterflyEqualizer implements Stage<'twoSps', 'symbols', EqualizerDiagnost
         convergeOnStart: { symbols: o.startSymbols, passes: o.passes },
         updateEvery: o.updateEvery,
         initialTaps: taps,
+        retryStarts: [...o.retryStarts],
         ddLms: o.dd ? { startSymbol: o.dd.startSymbol, phaseLoop: { ...o.dd.phaseLoop } } : null,
         singularity: { orthogonalStart: o.orthogonalStart, restart: o.restart, threshold: o.singularThreshold },
-        convergence: { window: o.window, threshold: o.convergenceThreshold },
+        convergence: { window: o.window, threshold: o.convergenceThreshold, dependence: o.dependenceThreshold },
         traceEvery: o.traceEvery,
       },
     };
   }
 
-  private setInitialTaps(): void {
+  /** Sets the taps to a start and every adaptation state (rules, counts, trace) back to its beginning. */
+  private restartAdaptation(init: EqualizerStart | ButterflyTaps): void {
     const L = this.L;
     const t = this.taps;
+    const c = this.c;
     t.fill(0);
-    const init = this.o.initialTaps;
     if (init === 'centre-spike') {
-      t[FILTER_XX * L + 2 * this.c] = 1;
-      t[FILTER_YY * L + 2 * this.c] = 1;
+      t[FILTER_XX * L + 2 * c] = 1;
+      t[FILTER_YY * L + 2 * c] = 1;
+    } else if (init === 'rotated') {
+      t[FILTER_XX * L + 2 * c] = Math.SQRT1_2;
+      t[FILTER_XY * L + 2 * c] = Math.SQRT1_2;
+      t[FILTER_YX * L + 2 * c] = -Math.SQRT1_2;
+      t[FILTER_YY * L + 2 * c] = Math.SQRT1_2;
+    } else if (init === 'circular') {
+      t[FILTER_XX * L + 2 * c] = Math.SQRT1_2;
+      t[FILTER_XY * L + 2 * c + 1] = Math.SQRT1_2;
+      t[FILTER_YX * L + 2 * c + 1] = Math.SQRT1_2;
+      t[FILTER_YY * L + 2 * c] = Math.SQRT1_2;
     } else {
       t.set(init.xx, FILTER_XX * L);
       t.set(init.xy, FILTER_XY * L);
       t.set(init.yx, FILTER_YX * L);
       t.set(init.yy, FILTER_YY * L);
     }
+    this.preRule.reset();
+    this.blind.reset();
+    this.dd?.reset();
+    this.adapted = 0;
+    this.restarts = 0;
+    this.currentRule = 'none';
+    this.trace.reset();
+    this.acc.fill(0);
+  }
+
+  /** Whether outputs with these figures pass the convergence criteria (singularity aside). */
+  private separated(sepX: number, sepY: number, dependence: number): boolean {
+    const o = this.o;
+    return sepX >= o.convergenceThreshold && sepY >= o.convergenceThreshold && dependence <= o.dependenceThreshold;
   }
 
   private emptyOutput(): FieldBlock<'symbols'> {
@@ -554,12 +652,7 @@ class ButterflyEqualizer implements Stage<'twoSps', 'symbols', EqualizerDiagnost
     uy.set(this.collectY.subarray(0, 2 * n), 2 * c);
     // Symbols whose whole window lies inside the buffer: 2k + c ≤ n − 1.
     const count = n - 1 - c >= 0 ? Math.floor((n - 1 - c) / 2) + 1 : 0;
-    for (let p = 0; p < this.o.passes; p++) {
-      // Each pass and the output run start over from the capture's first symbol.
-      if (p > 0) this.rewindCarrier(count);
-      this.run(ux, uy, 2 * c, count, null, null);
-    }
-    if (this.o.passes > 0) this.rewindCarrier(count);
+    if (this.o.passes > 0) this.adaptOnStart(ux, uy, count);
     this.collecting = false;
     const x = this.collectX.subarray(0, 2 * this.collected) as ComplexArray;
     const y = this.collectY.subarray(0, 2 * this.collected) as ComplexArray;
@@ -568,6 +661,74 @@ class ButterflyEqualizer implements Stage<'twoSps', 'symbols', EqualizerDiagnost
     this.collectY = new Float64Array(0);
     this.collected = 0;
     return out;
+  }
+
+  /**
+   * The passes over the start from the configured start, then from each
+   * retry start while the result is singular or its outputs dependent; the
+   * stream continues from the first attempt that separates, or else from
+   * the best one (not singular first, then the least dependent), run again.
+   */
+  private adaptOnStart(ux: Float64Array, uy: Float64Array, count: number): void {
+    const o = this.o;
+    const starts: (EqualizerStart | ButterflyTaps)[] = [o.initialTaps, ...o.retryStarts.filter((r) => r !== o.initialTaps)];
+    this.attempts = [];
+    this.inStartPasses = true;
+    for (const start of starts) {
+      if (this.attempts.length > 0) this.restartAdaptation(start);
+      this.passesOverStart(ux, uy, count);
+      const a = this.judgeStart(ux, uy, count, typeof start === 'string' ? start : 'given');
+      this.attempts.push(a);
+      if (a.separated) break;
+    }
+    let best = this.attempts.length - 1;
+    if (!this.attempts[best].separated) {
+      const score = (a: EqualizerAttempt) => (a.singular ? 1 : 0) + a.dependence;
+      for (let i = 0; i < this.attempts.length; i++) if (score(this.attempts[i]) < score(this.attempts[best])) best = i;
+      if (best !== this.attempts.length - 1) {
+        this.restartAdaptation(starts[best]);
+        this.passesOverStart(ux, uy, count);
+      }
+    }
+    this.chosen = best;
+    this.inStartPasses = false;
+  }
+
+  /** `passes` runs of adaptation over the start, each from the capture's first symbol, and back to it for the stream. */
+  private passesOverStart(ux: Float64Array, uy: Float64Array, count: number): void {
+    for (let p = 0; p < this.o.passes; p++) {
+      if (p > 0) this.rewindCarrier(count);
+      this.run(ux, uy, 2 * this.c, count, null, null);
+    }
+    this.rewindCarrier(count);
+  }
+
+  /** Filters the start with the taps as they are (no adaptation) and judges the outputs. */
+  private judgeStart(ux: Float64Array, uy: Float64Array, count: number, start: EqualizerStart | 'given'): EqualizerAttempt {
+    const ox = new Float64Array(2 * count);
+    const oy = new Float64Array(2 * count);
+    const z = this.z;
+    for (let k = 0; k < count; k++) {
+      butterflyOutput(this.taps, this.L, ux, uy, 2 * this.c + 2 * k, z);
+      ox[2 * k] = z[0];
+      ox[2 * k + 1] = z[1];
+      oy[2 * k] = z[2];
+      oy[2 * k + 1] = z[3];
+    }
+    const rho = rowOrthogonality(this.taps, this.L, CHECK_POINTS, CHECK_BAND);
+    const singular = !(rho >= this.o.singularThreshold);
+    const separationX = outputSeparation(ox, count, this.kurtosis);
+    const separationY = outputSeparation(oy, count, this.kurtosis);
+    const dependence = outputDependence(ox, oy, count, this.kurtosis, DEPENDENCE_LAGS);
+    return {
+      start,
+      rowOrthogonality: rho,
+      singular,
+      dependence,
+      separationX,
+      separationY,
+      separated: !singular && this.separated(separationX, separationY, dependence),
+    };
   }
 
   /** Filters (and adapts on) every symbol whose window is complete; `final` pads the end with zeros. */
@@ -701,10 +862,12 @@ class ButterflyEqualizer implements Stage<'twoSps', 'symbols', EqualizerDiagnost
           outX[j + 1] = xi;
           outY[j] = yr;
           outY[j + 1] = yi;
-          const p = this.windowPos;
-          windowX[p] = px;
-          windowY[p] = py;
-          this.windowPos = p + 1 === window ? 0 : p + 1;
+          const p = 2 * this.windowPos;
+          windowX[p] = xr;
+          windowX[p + 1] = xi;
+          windowY[p] = yr;
+          windowY[p + 1] = yi;
+          this.windowPos = this.windowPos + 1 === window ? 0 : this.windowPos + 1;
           if (this.windowFill < window) this.windowFill++;
         }
         if (observe) {
@@ -727,7 +890,7 @@ class ButterflyEqualizer implements Stage<'twoSps', 'symbols', EqualizerDiagnost
       }
       if (dd !== null && a === ddStart) dd.acquire();
       if (a === nextCheck) {
-        if (o.restart) this.checkSingularity();
+        if (o.restart && !this.inStartPasses) this.checkSingularity();
         nextCheck += CHECK_EVERY;
       }
     }
@@ -760,17 +923,33 @@ class ButterflyEqualizer implements Stage<'twoSps', 'symbols', EqualizerDiagnost
     }
   }
 
-  private windowSeparation(w: Float64Array): number {
+  /** The last `window` outputs of each polarization, oldest first. */
+  private windowInOrder(): { x: Float64Array; y: Float64Array; n: number } {
     const n = this.windowFill;
-    if (n === 0) return 0;
-    let m2 = 0;
-    let m4 = 0;
-    for (let i = 0; i < n; i++) {
-      m2 += w[i];
-      m4 += w[i] * w[i];
-    }
-    return separationIndex(m2 / n, m4 / n, this.kurtosis);
+    const w = this.o.window;
+    // Full: the oldest sits at windowPos; filling: at 0.
+    const first = n === w ? this.windowPos : 0;
+    const order = (ring: Float64Array) => {
+      const out = new Float64Array(2 * n);
+      out.set(ring.subarray(2 * first, 2 * n));
+      out.set(ring.subarray(0, 2 * first), 2 * (n - first));
+      return out;
+    };
+    return { x: order(this.windowX), y: order(this.windowY), n };
   }
+}
+
+/** Separation index (see {@link separationIndex}) of N outputs (interleaved complex). */
+function outputSeparation(z: Float64Array, n: number, kurtosis: number): number {
+  if (n === 0) return 0;
+  let m2 = 0;
+  let m4 = 0;
+  for (let i = 0; i < 2 * n; i += 2) {
+    const p = z[i] * z[i] + z[i + 1] * z[i + 1];
+    m2 += p;
+    m4 += p * p;
+  }
+  return separationIndex(m2 / n, m4 / n, kurtosis);
 }
 
 function validate(opt: EqualizerOptions): Resolved {
@@ -812,8 +991,12 @@ function validate(opt: EqualizerOptions): Resolved {
   const passes = integer('convergeOnStart.passes', start.passes, 2, 0, 100);
   const updateEvery = integer('updateEvery', opt.updateEvery, 1, 1);
   const initialTaps = opt.initialTaps ?? 'centre-spike';
-  if (initialTaps !== 'centre-spike') {
-    if (typeof initialTaps !== 'object') fail('initialTaps', "'centre-spike' or { xx, xy, yx, yy }", initialTaps);
+  const startNames = EQUALIZER_STARTS.map((n) => `'${n}'`).join(', ');
+  if (typeof initialTaps === 'string') {
+    if (!EQUALIZER_STARTS.includes(initialTaps)) fail('initialTaps', `one of ${startNames} or { xx, xy, yx, yy }`, initialTaps);
+  } else {
+    if (typeof initialTaps !== 'object' || initialTaps === null)
+      fail('initialTaps', `one of ${startNames} or { xx, xy, yx, yy }`, initialTaps);
     for (const k of ['xx', 'xy', 'yx', 'yy'] as const) {
       const f = initialTaps[k];
       if (!(f instanceof Float64Array) || f.length !== 2 * L) {
@@ -822,6 +1005,9 @@ function validate(opt: EqualizerOptions): Resolved {
       for (const v of f) if (!Number.isFinite(v)) fail(`initialTaps.${k}`, 'finite values', v);
     }
   }
+  const retryStarts = opt.retryStarts ?? ['rotated', 'circular'];
+  if (!Array.isArray(retryStarts) || retryStarts.some((r) => !EQUALIZER_STARTS.includes(r)))
+    fail('retryStarts', `a list of ${startNames}`, retryStarts);
   let dd: Resolved['dd'] = null;
   if (opt.ddLms !== undefined) {
     const startSymbol = integer('ddLms.startSymbol', opt.ddLms.startSymbol, 0, pre);
@@ -839,8 +1025,9 @@ function validate(opt: EqualizerOptions): Resolved {
   if (typeof restart !== 'boolean') fail('singularity.restart', 'true or false', restart);
   const singularThreshold = fraction('singularity.threshold', sing.threshold, 0.5);
   const conv = opt.convergence ?? {};
-  const window = integer('convergence.window', conv.window, 2048, 16);
-  const convergenceThreshold = fraction('convergence.threshold', conv.threshold, 0.7);
+  const window = integer('convergence.window', conv.window, 8192, 16);
+  const convergenceThreshold = fraction('convergence.threshold', conv.threshold, 0.1);
+  const dependenceThreshold = fraction('convergence.dependence', conv.dependence, 0.15);
   const traceEvery = integer('traceEvery', opt.traceEvery, 256, 1);
   return {
     modulation: opt.modulation,
@@ -852,12 +1039,14 @@ function validate(opt: EqualizerOptions): Resolved {
     passes,
     updateEvery,
     initialTaps,
+    retryStarts,
     dd,
     orthogonalStart,
     restart,
     singularThreshold,
     window,
     convergenceThreshold,
+    dependenceThreshold,
     traceEvery,
   };
 }

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { complexArray } from '../../src/index.js';
+import { complexArray, type EqualizerStart } from '../../src/index.js';
 import { equalizeSimulated } from '../support/equalize-simulated.js';
 
 // Singular convergence — both outputs locking onto the same polarization — is the classic failure of CMA
@@ -15,11 +15,12 @@ import { equalizeSimulated } from '../support/equalize-simulated.js';
 const SOPS = 200;
 const SYMBOLS = 4096;
 
-function sweep(singularity: { orthogonalStart: boolean; restart: boolean }) {
+function sweep(singularity: { orthogonalStart: boolean; restart: boolean }, retryStarts?: readonly EqualizerStart[]) {
   let flagged = 0;
   let sameSource = 0;
   let notConverged = 0;
   let restarts = 0;
+  let retried = 0;
   for (let i = 0; i < SOPS; i++) {
     const r = equalizeSimulated(
       {
@@ -29,35 +30,44 @@ function sweep(singularity: { orthogonalStart: boolean; restart: boolean }) {
         symbolRate: 32e9,
         channel: { esN0Db: 15, sop: 'random', dgdPs: 10 },
       },
-      { preConvergenceSymbols: 2048, singularity },
+      { preConvergenceSymbols: 2048, singularity, ...(retryStarts ? { retryStarts } : {}) },
     );
     if (r.diag.singularity.singular) flagged++;
     if (r.align.x.source === r.align.y.source) sameSource++;
     if (!r.diag.convergence.converged) notConverged++;
     restarts += r.diag.singularity.restarts;
+    if (r.diag.start.attempts.length > 1) retried++;
   }
-  return { flagged, sameSource, notConverged, restarts };
+  return { flagged, sameSource, notConverged, restarts, retried };
 }
 
 describe('singularity over 200 seeded random SOPs (DP-QPSK, 32 GBd, 10 ps DGD, 15 dB)', () => {
-  it('restart on detection (the default): zero singular convergences', () => {
+  it('retrying from another start (the default): zero singular convergences', () => {
     const s = sweep({ orthogonalStart: false, restart: true });
     expect(s.flagged).toBe(0);
     expect(s.sameSource).toBe(0);
     expect(s.notConverged).toBe(0);
-    // The restarts are what kept these runs out of the singular state (measured: 4 would be singular).
+    // The retries are what kept these runs out of the singular state (measured: 4 would be singular).
+    expect(s.retried).toBeGreaterThan(0);
+  });
+
+  it('restart on detection alone, without retries: zero singular convergences', () => {
+    const s = sweep({ orthogonalStart: false, restart: true }, []);
+    expect(s.flagged).toBe(0);
+    expect(s.sameSource).toBe(0);
+    // The restarts, during the stream after the passes, are what kept these runs out of the singular state.
     expect(s.restarts).toBeGreaterThan(0);
   });
 
   it('orthogonal pre-convergence: zero singular convergences', () => {
-    const s = sweep({ orthogonalStart: true, restart: false });
+    const s = sweep({ orthogonalStart: true, restart: false }, []);
     expect(s.flagged).toBe(0);
     expect(s.sameSource).toBe(0);
     expect(s.notConverged).toBe(0);
   });
 
   it('without prevention some runs go singular, and the diagnostic flags exactly those', () => {
-    const s = sweep({ orthogonalStart: false, restart: false });
+    const s = sweep({ orthogonalStart: false, restart: false }, []);
     // Measured: 4 of 200. The point is the agreement of the diagnostic with the independent check.
     expect(s.sameSource).toBeGreaterThan(0);
     expect(s.flagged).toBe(s.sameSource);
@@ -82,7 +92,11 @@ describe('constructed singular case', () => {
   };
 
   it('the diagnostic fires', () => {
-    const r = equalizeSimulated(sim, { initialTaps, singularity: { orthogonalStart: false, restart: false } });
+    const r = equalizeSimulated(sim, {
+      initialTaps,
+      retryStarts: [],
+      singularity: { orthogonalStart: false, restart: false },
+    });
     expect(r.align.x.source).toBe(r.align.y.source);
     expect(r.diag.singularity.singular).toBe(true);
     expect(r.diag.singularity.rowOrthogonality).toBeLessThan(0.1);
@@ -90,8 +104,19 @@ describe('constructed singular case', () => {
   });
 
   it('restart on detection recovers from it', () => {
-    const r = equalizeSimulated(sim, { initialTaps, singularity: { orthogonalStart: false, restart: true } });
+    const r = equalizeSimulated(sim, { initialTaps, retryStarts: [], singularity: { orthogonalStart: false, restart: true } });
     expect(r.diag.singularity.restarts).toBeGreaterThan(0);
+    expect(r.diag.singularity.singular).toBe(false);
+    expect(r.align.x.source).not.toBe(r.align.y.source);
+    expect(r.diag.convergence.converged).toBe(true);
+  });
+
+  it('retrying from another start recovers from it, and reports each attempt', () => {
+    const r = equalizeSimulated(sim, { initialTaps, singularity: { orthogonalStart: false, restart: false } });
+    const { attempts, chosen } = r.diag.start;
+    expect(attempts[0]).toMatchObject({ start: 'given', singular: true, separated: false });
+    expect(attempts.length).toBeGreaterThan(1);
+    expect(attempts[chosen].separated).toBe(true);
     expect(r.diag.singularity.singular).toBe(false);
     expect(r.align.x.source).not.toBe(r.align.y.source);
     expect(r.diag.convergence.converged).toBe(true);

@@ -116,6 +116,23 @@ export const stageCatalog: CatalogEntry[] = [
     input: () => randomField('symbols', 15, 27, 32e9, 1),
   },
   {
+    name: 'blind-phase-search (joint, window chosen on the start)',
+    make: () =>
+      blindPhaseSearch({
+        modulation: '16qam',
+        testPhases: 8,
+        halfWindow: 'auto',
+        polarizations: 'joint',
+        calibrationSymbols: 400,
+      }),
+    input: () => randomField('symbols', 900, 41, 32e9, 1),
+  },
+  {
+    name: 'viterbi-viterbi (joint, stream shorter than the calibration)',
+    make: () => viterbiViterbi({ modulation: 'qpsk', halfWindow: 6, polarizations: 'joint', calibrationSymbols: 1000 }),
+    input: () => randomField('symbols', 300, 42, 32e9, 1),
+  },
+  {
     name: 'differential-quadrant-decoder',
     make: () => differentialQuadrantDecoder(),
     input: () => randomField('symbols', 300, 28, 32e9, 1),

@@ -273,23 +273,30 @@ export function analyzeCapture(
     ...base,
   });
 
-  const eq = equalizerVerdict(chain);
+  const tooShort = symbols <= skipSymbols + skipTail + 128;
+  // The measurement first (when there is enough to measure), so that the equalizer's verdict can use the measured SNR.
+  let m: Measurement | null = null;
+  let referenceFailure: AnalysisFailure | null = null;
+  if (!tooShort) {
+    try {
+      if (measureError !== null) throw measureError;
+      m = (stream as MeasurementStream).finish();
+    } catch (e) {
+      if (e instanceof ReferenceNotFoundError) referenceFailure = { check: 'reference', reason: e.message };
+      else if (e instanceof RangeError && /reference/.test(e.message))
+        referenceFailure = { check: 'reference', reason: e.message };
+      else throw e;
+    }
+  }
+  const eq = equalizerVerdict(chain, m);
   if (eq) return failed(eq);
-  if (symbols <= skipSymbols + skipTail + 128) {
+  if (tooShort) {
     return failed({
       check: 'length',
       reason: `${symbols} symbols recovered: too few to measure after leaving out ${skipSymbols} leading and ${skipTail} trailing`,
     });
   }
-  let m: Measurement;
-  try {
-    if (measureError !== null) throw measureError;
-    m = (stream as MeasurementStream).finish();
-  } catch (e) {
-    if (e instanceof ReferenceNotFoundError) return failed({ check: 'reference', reason: e.message });
-    if (e instanceof RangeError && /reference/.test(e.message)) return failed({ check: 'reference', reason: e.message });
-    throw e;
-  }
+  if (referenceFailure !== null || m === null) return failed(referenceFailure as AnalysisFailure);
   const fit = modulationFit(m, settings.modulation, tolerance);
   if (!fit.fits) {
     return failed(
@@ -316,25 +323,57 @@ export function analyzeCapture(
   };
 }
 
-function equalizerVerdict(chain: ReceiverChain): AnalysisFailure | null {
+/**
+ * The equalizer's own verdict (singular taps; outputs that do not carry one
+ * source each; outputs that are mostly noise), then, when the symbols were
+ * measured, the separation index of each output against the one a
+ * perfectly equalized output has at the SNR measured on that polarization,
+ * (s/(1 + s))²: at least half of it is required, so that the test follows
+ * the operating point (a correct output at 5 dB has σ ≈ 0.58) instead of a
+ * fixed threshold.
+ */
+function equalizerVerdict(chain: ReceiverChain, m: Measurement | null): AnalysisFailure | null {
   const d = chain.diagnostics().equalizer as {
-    convergence?: { converged: boolean; separationX: number; separationY: number; threshold: number; criterion: string };
+    convergence?: {
+      converged: boolean;
+      separationX: number;
+      separationY: number;
+      dependence: number;
+      threshold: number;
+      dependenceThreshold: number;
+      criterion: string;
+    };
     singularity?: { singular: boolean; rowOrthogonality: number; criterion: string };
   } | null;
   if (!d?.convergence) return null; // a replaced equalizer that reports no verdict
+  const c = d.convergence;
   if (d.singularity?.singular) {
     return {
       check: 'equalizer',
       reason: `the equalizer's outputs converged to the same polarization (row orthogonality ${d.singularity.rowOrthogonality.toFixed(3)}; ${d.singularity.criterion})`,
     };
   }
-  if (!d.convergence.converged) {
+  if (!c.converged) {
     return {
       check: 'equalizer',
       reason:
-        `the equalizer did not converge: separation index x ${d.convergence.separationX.toFixed(3)}, ` +
-        `y ${d.convergence.separationY.toFixed(3)}, below ${d.convergence.threshold} (${d.convergence.criterion})`,
+        `the equalizer did not converge: dependence of the outputs ${c.dependence.toFixed(3)} (at most ${c.dependenceThreshold}), ` +
+        `separation index x ${c.separationX.toFixed(3)}, y ${c.separationY.toFixed(3)} (at least ${c.threshold}) (${c.criterion})`,
     };
+  }
+  if (m === null) return null;
+  for (const p of ['x', 'y'] as const) {
+    const s = 10 ** (m.perPol[p].snrDb / 10);
+    const expected = Number.isFinite(s) ? (s / (1 + s)) ** 2 : 1;
+    const sigma = p === 'x' ? c.separationX : c.separationY;
+    if (sigma < 0.5 * expected) {
+      return {
+        check: 'equalizer',
+        reason:
+          `the equalizer's ${p} output is less separated than its measured SNR allows: separation index ${sigma.toFixed(3)}, ` +
+          `${expected.toFixed(3)} for a perfectly equalized output at ${m.perPol[p].snrDb.toFixed(2)} dB (at least half of it required)`,
+      };
+    }
   }
   return null;
 }
