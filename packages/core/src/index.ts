@@ -71,6 +71,7 @@ export * from './dsp/welch.js';
 export * from './equalizer/butterfly-kernel.js';
 export * from './equalizer/cma.js';
 export * from './equalizer/dd-lms.js';
+export * from './equalizer/decision-equalizer.js';
 export * from './equalizer/equalizer.js';
 export * from './equalizer/rde.js';
 export * from './equalizer/update-rule.js';

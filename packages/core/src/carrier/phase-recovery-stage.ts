@@ -475,7 +475,8 @@ class PhaseRecoveryStage implements Stage<'symbols', 'symbols', PhaseRecoveryDia
     let estimatorNoise = Number.NaN;
     let phaseWalk = Number.NaN;
     if (halfWindow === 'auto') {
-      const choice = chooseHalfWindow(this.provisionalTrack(x, y, m, delta), PROVISIONAL_HALF_WINDOW);
+      const track = (every: number, first: number) => this.provisionalTrack(x, y, every, first, delta);
+      const choice = chooseHalfWindow({ all: track(1, 0), even: track(2, 0), odd: track(2, 1) }, PROVISIONAL_HALF_WINDOW);
       halfWindow = choice?.halfWindow ?? FALLBACK_HALF_WINDOW;
       estimatorNoise = choice?.estimatorNoise ?? Number.NaN;
       phaseWalk = choice?.phaseWalk ?? Number.NaN;
@@ -496,19 +497,24 @@ class PhaseRecoveryStage implements Stage<'symbols', 'symbols', PhaseRecoveryDia
     return this.symbolsBlock(outX.subarray(0, 2 * got) as ComplexArray, outY.subarray(0, 2 * got) as ComplexArray);
   }
 
-  /** The provisional estimator's phase track over the calibration symbols (the common one, or x's). */
-  private provisionalTrack(x: ComplexArray, y: ComplexArray, m: number, delta: number): Float64Array {
+  /**
+   * The provisional estimator's phase track (the common one, or x's) over
+   * the calibration symbols `first`, `first + every`, … of x and y.
+   */
+  private provisionalTrack(x: ComplexArray, y: ComplexArray, every: number, first: number, delta: number): Float64Array {
     const kernel = this.dualKernel(PROVISIONAL_HALF_WINDOW, delta);
+    const m = Math.max(0, Math.ceil(((x.length >> 1) - first) / every));
     const track = new Float64Array(m);
     const theta = this.theta;
     let got = 0;
     for (let k = 0; k < m + kernel.delay; k++) {
       const present = k < m;
+      const i = 2 * (first + k * every);
       const ok = kernel.push(
-        present ? x[2 * k] : 0,
-        present ? x[2 * k + 1] : 0,
-        present ? y[2 * k] : 0,
-        present ? y[2 * k + 1] : 0,
+        present ? x[i] : 0,
+        present ? x[i + 1] : 0,
+        present ? y[i] : 0,
+        present ? y[i + 1] : 0,
         present,
         theta,
       );

@@ -50,28 +50,42 @@ export function optimalWindowLength(estimatorNoise: number, phaseWalk: number): 
   return Math.sqrt(Math.max(1, (12 * estimatorNoise) / phaseWalk - 1));
 }
 
+/** The provisional phase tracks {@link chooseHalfWindow} reads. */
+export interface ProvisionalTracks {
+  /** The estimator's unwrapped phases over every symbol, rad. */
+  readonly all: Float64Array;
+  /** Its phases over the even-numbered symbols alone (symbols 0, 2, 4 …), rad. */
+  readonly even: Float64Array;
+  /** Its phases over the odd-numbered symbols alone (symbols 1, 3, 5 …), rad. */
+  readonly odd: Float64Array;
+}
+
 /**
- * Chooses the half window of a carrier-phase estimator from a phase track
- * the same estimator made with a provisional half window N₀ (so that the
- * estimator's efficiency at this SNR, and any slow wander the outputs
- * have, are measured rather than modelled).
+ * Chooses the half window of a carrier-phase estimator from phase tracks
+ * the same estimator made with a provisional half window N₀ (so that its
+ * efficiency at this SNR, and any slow wander of the outputs, are measured
+ * rather than modelled), for the Wiener trade-off of
+ * {@link optimalWindowLength}.
  *
- * Over lags ℓ longer than the provisional window L₀ = 2N₀ + 1 the errors of
- * two estimates are independent, so the increments of the track have
- * variance V(ℓ) = 2σₑ² + ℓ·σₚ², σₑ² the error variance of one estimate.
- * Two lags, ℓ₁ = L₀ + 1 and ℓ₂ = 4ℓ₁, give σₚ² = (V(ℓ₂) − V(ℓ₁))/(ℓ₂ − ℓ₁)
- * and σₑ²; since σₑ² = σₙ²/L₀ + σₚ²·(L₀² − 1)/(12L₀) (see
- * {@link optimalWindowLength}), σₙ² = L₀·σₑ² − σₚ²·(L₀² − 1)/12. The
- * increments are taken modulo π/2 (the ambiguity of the estimate) so that a
- * slip of the provisional track does not count as a walk. Then
+ * The estimator's noise: the tracks over the even and over the odd symbols
+ * alone see the same phase walk over the same span (their windows
+ * interleave) but independent noise, each with L₀ = 2N₀ + 1 symbols, so
+ * var(θ_even − θ_odd) = 2σₙ²/L₀ and σₙ² = L₀·var(θ_even − θ_odd)/2.
+ *
+ * The walk: over lags ℓ longer than L₀ the errors of two estimates of the
+ * full track are independent, so its increments have variance
+ * V(ℓ) = 2σₑ² + ℓ·σₚ²; two lags, ℓ₁ = L₀ + 1 and ℓ₂ = 4ℓ₁, give
+ * σₚ² = (V(ℓ₂) − V(ℓ₁))/(ℓ₂ − ℓ₁).
+ *
+ * Differences and increments are taken modulo π/2 (the ambiguity of the
+ * estimate), so that a slip of a provisional track does not count. Then
  * N = round((L* − 1)/2) within the bounds.
- * @param track the provisional estimator's unwrapped phases, rad, one per symbol
- * @param provisionalHalfWindow N₀ of the track
- * @returns the choice, or null for a track too short to tell (fewer than 2ℓ₂ phases)
- * @example const choice = chooseHalfWindow(theta, 16); choice?.halfWindow
+ * @param provisionalHalfWindow N₀ of the tracks
+ * @returns the choice, or null for tracks too short to tell (fewer than 2ℓ₂ phases in all)
+ * @example const choice = chooseHalfWindow({ all, even, odd }, 16); choice?.halfWindow
  */
 export function chooseHalfWindow(
-  track: Float64Array,
+  tracks: ProvisionalTracks,
   provisionalHalfWindow: number,
   bounds: HalfWindowBounds = {},
 ): HalfWindowChoice | null {
@@ -80,16 +94,31 @@ export function chooseHalfWindow(
   const l0 = 2 * provisionalHalfWindow + 1;
   const l1 = l0 + 1;
   const l2 = 4 * l1;
-  if (track.length < 2 * l2) return null;
-  const v1 = wrappedIncrementVariance(track, l1);
-  const v2 = wrappedIncrementVariance(track, l2);
+  const { all, even, odd } = tracks;
+  if (all.length < 2 * l2) return null;
+  const v1 = wrappedIncrementVariance(all, l1);
+  const v2 = wrappedIncrementVariance(all, l2);
   const phaseWalk = Math.max(0, (v2 - v1) / (l2 - l1));
-  const errorVariance = Math.max(0, (v1 - l1 * phaseWalk) / 2);
   // A floor of 1e-6 rad²: an estimator never tells the phase better than that from one symbol.
-  const estimatorNoise = Math.max(1e-6, l0 * errorVariance - (phaseWalk * (l0 * l0 - 1)) / 12);
+  const estimatorNoise = Math.max(1e-6, (l0 * wrappedDifferenceVariance(even, odd)) / 2);
   const optimalLength = optimalWindowLength(estimatorNoise, phaseWalk);
   const n = Number.isFinite(optimalLength) ? Math.round((optimalLength - 1) / 2) : max;
   return { halfWindow: Math.min(max, Math.max(min, n)), estimatorNoise, phaseWalk, optimalLength };
+}
+
+/** Variance of (aₖ − bₖ) folded into (−π/4, π/4], over the shorter of the two. */
+function wrappedDifferenceVariance(a: Float64Array, b: Float64Array): number {
+  const n = Math.min(a.length, b.length);
+  let s = 0;
+  let q = 0;
+  for (let k = 0; k < n; k++) {
+    const raw = a[k] - b[k];
+    const d = raw - QUARTER_TURN * Math.round(raw / QUARTER_TURN);
+    s += d;
+    q += d * d;
+  }
+  const mean = s / n;
+  return q / n - mean * mean;
 }
 
 /** Variance of (θₖ₊ℓ − θₖ) folded into (−π/4, π/4]. */

@@ -9,6 +9,7 @@ import {
   compensateDispersion,
   complexArray,
   type Domain,
+  decisionEqualizer,
   deskewChannels,
   differentialQuadrantDecoder,
   type FieldBlock,
@@ -225,6 +226,16 @@ export const stageCatalog: CatalogEntry[] = [
     make: () =>
       butterflyEqualizer({ modulation: 'qpsk', taps: 9, preConvergenceSymbols: 64, convergeOnStart: { symbols: 1, passes: 0 } }),
     input: () => randomField('twoSps', 900, 5, 64e9, 2),
+  },
+  {
+    name: 'decision equalizer (passes over the start)',
+    make: () => decisionEqualizer({ modulation: '16qam', taps: 5, convergeOnStart: { symbols: 200, passes: 2 } }),
+    input: () => randomField('symbols', 700, 43, 32e9, 1),
+  },
+  {
+    name: 'decision equalizer (streaming, stream shorter than the window)',
+    make: () => decisionEqualizer({ modulation: 'qpsk', taps: 9, convergeOnStart: { symbols: 1, passes: 0 } }),
+    input: () => randomField('symbols', 3, 44, 32e9, 1),
   },
   {
     name: 'coarse-frequency (estimate span across blocks)',

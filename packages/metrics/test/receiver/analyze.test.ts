@@ -198,6 +198,7 @@ describe('default receiver: explicit failures and streaming', () => {
       'equalizer',
       'frequency',
       'phase',
+      'decisionEqualizer',
     ]);
   });
 });

@@ -1,0 +1,298 @@
+import { type Constellation, constellation, MODULATIONS, type ModulationName } from '../modulation/constellation.js';
+import { type FieldBlock, fieldBlock } from '../pipeline/blocks.js';
+import { BlockError, OptionError, type Stage, type StageRecord } from '../pipeline/stage.js';
+import { type ComplexArray, complexArray } from '../signal/complex.js';
+import { butterflyOutput, FILTER_XX, FILTER_XY, FILTER_YX, FILTER_YY, updateRow } from './butterfly-kernel.js';
+import type { ButterflyTaps } from './equalizer.js';
+
+const NAME = 'decision-equalizer';
+
+/** Options of {@link decisionEqualizer}; only `modulation` is required. */
+export interface DecisionEqualizerOptions {
+  /** Sets the decisions. */
+  readonly modulation: ModulationName;
+  /** Taps per filter L, odd, 1 … 63 (default 9: four symbols either side). */
+  readonly taps?: number;
+  /** LMS step size μ (default 3e-4, for symbols at unit average power). */
+  readonly stepSize?: number;
+  /**
+   * Passes over the start (default { symbols: 8192, passes: 2 }): the first
+   * `symbols` symbols are held and adapted over `passes` times before the
+   * stream is filtered from its first symbol with those taps, still adapting
+   * (0 passes: no holding).
+   */
+  readonly convergeOnStart?: {
+    /** Symbols held and adapted over (≥ 1). */
+    readonly symbols: number;
+    /** Passes over them (0 … 100). */
+    readonly passes: number;
+  };
+}
+
+/** What {@link decisionEqualizer} reports. */
+export interface DecisionEqualizerDiagnostics {
+  /** Taps per filter. */
+  readonly taps: number;
+  /** Symbols delivered so far, per polarization. */
+  readonly symbols: number;
+  /** Mean |d − z|² of the outputs against their decisions over the last 4,096 symbols delivered, per polarization. */
+  readonly decisionErrorPower: {
+    /** Of the x output. */
+    readonly x: number;
+    /** Of the y output. */
+    readonly y: number;
+  };
+  /** The taps now. */
+  readonly finalTaps: ButterflyTaps;
+}
+
+/** Symbols over which the decision error power is averaged. */
+const ERROR_WINDOW = 4096;
+
+/**
+ * A symbol-spaced 2×2 equalizer adapted by decision-directed LMS on
+ * carrier-recovered symbols: it refines what the blind equalizer left
+ * (the residual inter-symbol interference and polarization crosstalk of
+ * CMA's and RDE's misadjustment, largest for dense constellations near the
+ * FEC thresholds) with decisions that know the phase. With the input after
+ * carrier recovery, the decision error needs no phase loop of its own:
+ *
+ *   x̂ₖ = Σⱼ hxx[j]·xₖ₊c₋ⱼ + hxy[j]·yₖ₊c₋ⱼ  (and ŷₖ likewise),   eₖ = dec(x̂ₖ) − x̂ₖ,   h ← h + μ·eₖ·u*
+ *
+ * (LMS: Widrow & Hoff 1960; a decision-directed equalizer after carrier
+ * recovery is common practice.) A cycle slip of the carrier recovery turns
+ * the decisions with the symbols, so the error, and the taps, do not see
+ * it. Starts from a centre spike; converges over the start of the stream
+ * before its output begins (see `convergeOnStart`). Block-size invariant.
+ * @throws OptionError for any option out of range
+ * @example const refine = decisionEqualizer({ modulation: '64qam', taps: 9 });
+ */
+export function decisionEqualizer(options: DecisionEqualizerOptions): Stage<'symbols', 'symbols', DecisionEqualizerDiagnostics> {
+  return new DecisionEqualizer(options);
+}
+
+class DecisionEqualizer implements Stage<'symbols', 'symbols', DecisionEqualizerDiagnostics> {
+  readonly name = NAME;
+  readonly input = 'symbols' as const;
+  readonly output = 'symbols' as const;
+  private readonly c: Constellation;
+  private readonly L: number;
+  private readonly centre: number;
+  private readonly mu: number;
+  private readonly startSymbols: number;
+  private readonly passes: number;
+  private readonly taps: Float64Array;
+  private readonly z = new Float64Array(4);
+  private readonly errors = new Float64Array(2 * ERROR_WINDOW);
+  private errorFill = 0;
+  private errorPos = 0;
+  private held: { x: Float64Array; y: Float64Array; n: number } | null = null;
+  /** Input symbols whose windows are not complete yet, from input index `lineStart`. */
+  private lineX = complexArray(0);
+  private lineY = complexArray(0);
+  private lineStart = 0;
+  private received = 0;
+  private delivered = 0;
+  private sampleRate = Number.NaN;
+
+  constructor(o: DecisionEqualizerOptions) {
+    const fail = (option: string, expected: string, received: unknown): never => {
+      throw new OptionError(NAME, option, expected, received);
+    };
+    if (o === null || typeof o !== 'object') fail('options', 'an options object', o);
+    if (!MODULATIONS.includes(o.modulation)) fail('modulation', `one of ${MODULATIONS.join(', ')}`, o.modulation);
+    const L = o.taps ?? 9;
+    if (!Number.isInteger(L) || L < 1 || L > 63 || L % 2 === 0) fail('taps', 'an odd integer from 1 to 63', o.taps);
+    const mu = o.stepSize ?? 3e-4;
+    if (!(mu > 0 && mu < 1)) fail('stepSize', 'a number in (0, 1)', o.stepSize);
+    const start = o.convergeOnStart ?? { symbols: 8192, passes: 2 };
+    if (!Number.isInteger(start.symbols) || start.symbols < 1) fail('convergeOnStart.symbols', 'an integer ≥ 1', start.symbols);
+    if (!Number.isInteger(start.passes) || start.passes < 0 || start.passes > 100)
+      fail('convergeOnStart.passes', 'an integer from 0 to 100', start.passes);
+    this.c = constellation(o.modulation);
+    this.L = L;
+    this.centre = (L - 1) / 2;
+    this.mu = mu;
+    this.startSymbols = start.symbols;
+    this.passes = start.passes;
+    this.taps = new Float64Array(8 * L);
+    this.reset();
+  }
+
+  process(block: FieldBlock<'symbols'>): FieldBlock<'symbols'> {
+    if (block.domain !== 'symbols') throw new BlockError(`${NAME}: expected a 'symbols' block, received '${block.domain}'`);
+    if (block.x.length !== block.y.length)
+      throw new BlockError(`${NAME}: x has ${block.x.length >> 1} symbols, y has ${block.y.length >> 1}`);
+    if (!Number.isNaN(this.sampleRate) && block.sampleRate !== this.sampleRate)
+      throw new BlockError(`${NAME}: the symbol rate changed mid-stream from ${this.sampleRate} to ${block.sampleRate}`);
+    this.sampleRate = block.sampleRate;
+    if (this.held !== null) {
+      this.hold(block.x, block.y);
+      if (this.held.n < this.startSymbols) return this.out(complexArray(0), complexArray(0));
+      return this.startFromHeld(false);
+    }
+    return this.stream(block.x, block.y, false);
+  }
+
+  flush(): FieldBlock<'symbols'> | null {
+    if (Number.isNaN(this.sampleRate)) return null;
+    if (this.held !== null) return this.startFromHeld(true);
+    return this.stream(complexArray(0), complexArray(0), true);
+  }
+
+  reset(): void {
+    this.taps.fill(0);
+    this.taps[FILTER_XX * this.L + 2 * this.centre] = 1;
+    this.taps[FILTER_YY * this.L + 2 * this.centre] = 1;
+    this.held = this.passes > 0 ? { x: new Float64Array(0), y: new Float64Array(0), n: 0 } : null;
+    this.lineX = complexArray(this.centre);
+    this.lineY = complexArray(this.centre);
+    this.lineStart = -this.centre;
+    this.received = 0;
+    this.delivered = 0;
+    this.sampleRate = Number.NaN;
+    this.errors.fill(0);
+    this.errorFill = 0;
+    this.errorPos = 0;
+  }
+
+  diagnostics(): DecisionEqualizerDiagnostics {
+    const L = this.L;
+    const filter = (offset: number) => this.taps.slice(offset * L, offset * L + 2 * L) as ComplexArray;
+    let ex = 0;
+    let ey = 0;
+    for (let i = 0; i < this.errorFill; i++) {
+      ex += this.errors[2 * i];
+      ey += this.errors[2 * i + 1];
+    }
+    const n = this.errorFill;
+    return {
+      taps: L,
+      symbols: this.delivered,
+      decisionErrorPower: { x: n > 0 ? ex / n : Number.NaN, y: n > 0 ? ey / n : Number.NaN },
+      finalTaps: { xx: filter(FILTER_XX), xy: filter(FILTER_XY), yx: filter(FILTER_YX), yy: filter(FILTER_YY) },
+    };
+  }
+
+  describe(): StageRecord {
+    return {
+      stage: NAME,
+      options: {
+        modulation: this.c.name,
+        taps: this.L,
+        stepSize: this.mu,
+        convergeOnStart: { symbols: this.startSymbols, passes: this.passes },
+      },
+    };
+  }
+
+  private out(x: ComplexArray, y: ComplexArray): FieldBlock<'symbols'> {
+    return fieldBlock('symbols', x, y, this.sampleRate, 1);
+  }
+
+  private hold(x: ComplexArray, y: ComplexArray): void {
+    const h = this.held as { x: Float64Array; y: Float64Array; n: number };
+    const need = h.n + (x.length >> 1);
+    if (2 * need > h.x.length) {
+      const size = Math.max(2 * need, 2 * h.x.length);
+      const nx = new Float64Array(size);
+      const ny = new Float64Array(size);
+      nx.set(h.x.subarray(0, 2 * h.n));
+      ny.set(h.y.subarray(0, 2 * h.n));
+      h.x = nx;
+      h.y = ny;
+    }
+    h.x.set(x, 2 * h.n);
+    h.y.set(y, 2 * h.n);
+    h.n = need;
+  }
+
+  /** Adapts over the held start `passes` times, then streams everything held from its first symbol. */
+  private startFromHeld(final: boolean): FieldBlock<'symbols'> {
+    const h = this.held as { x: Float64Array; y: Float64Array; n: number };
+    this.held = null;
+    const n = Math.min(h.n, this.startSymbols);
+    const c = this.centre;
+    // The start with c zeros of history before it and c after it, as the stream sees its edges.
+    const ux = new Float64Array(2 * (n + 2 * c));
+    const uy = new Float64Array(2 * (n + 2 * c));
+    ux.set(h.x.subarray(0, 2 * n), 2 * c);
+    uy.set(h.y.subarray(0, 2 * n), 2 * c);
+    for (let p = 0; p < this.passes; p++) this.run(ux, uy, 2 * c, n, null, null);
+    return this.stream(h.x.subarray(0, 2 * h.n) as ComplexArray, h.y.subarray(0, 2 * h.n) as ComplexArray, final);
+  }
+
+  /** Filters (and adapts on) every symbol whose window is complete; `final` pads the end with zeros. */
+  private stream(x: ComplexArray, y: ComplexArray, final: boolean): FieldBlock<'symbols'> {
+    const c = this.centre;
+    const nNew = x.length >> 1;
+    const lineLen = this.lineX.length >> 1;
+    const pad = final ? c : 0;
+    const ux = new Float64Array(2 * (lineLen + nNew + pad));
+    const uy = new Float64Array(2 * (lineLen + nNew + pad));
+    ux.set(this.lineX);
+    uy.set(this.lineY);
+    ux.set(x, 2 * lineLen);
+    uy.set(y, 2 * lineLen);
+    this.received += nNew;
+    // Symbol k needs inputs up to k + c; at the end, every real symbol is delivered.
+    const last = final ? this.received - 1 : this.lineStart + lineLen + nNew - 1 - c;
+    const count = Math.max(0, last - this.delivered + 1);
+    const outX = complexArray(count);
+    const outY = complexArray(count);
+    this.run(ux, uy, this.delivered + c - this.lineStart, count, outX, outY);
+    this.delivered += count;
+    const keepFrom = this.delivered - c - this.lineStart;
+    this.lineX = ux.slice(2 * keepFrom, 2 * (lineLen + nNew)) as ComplexArray;
+    this.lineY = uy.slice(2 * keepFrom, 2 * (lineLen + nNew)) as ComplexArray;
+    this.lineStart += keepFrom;
+    return this.out(outX, outY);
+  }
+
+  /**
+   * Filters and adapts `count` symbols, the first with its newest window
+   * sample at complex index `newest0` of the delay lines, the next ones one
+   * sample later; writes the outputs when `outX`/`outY` are given.
+   */
+  private run(
+    ux: Float64Array,
+    uy: Float64Array,
+    newest0: number,
+    count: number,
+    outX: Float64Array | null,
+    outY: Float64Array | null,
+  ): void {
+    const z = this.z;
+    const scale = this.c.scale;
+    const top = this.c.levelsPerAxis - 1;
+    for (let k = 0; k < count; k++) {
+      const newest = newest0 + k;
+      butterflyOutput(this.taps, this.L, ux, uy, newest, z);
+      const exr = level(z[0], scale, top) - z[0];
+      const exi = level(z[1], scale, top) - z[1];
+      const eyr = level(z[2], scale, top) - z[2];
+      const eyi = level(z[3], scale, top) - z[3];
+      updateRow(this.taps, this.L, ux, uy, newest, 0, exr, exi, this.mu);
+      updateRow(this.taps, this.L, ux, uy, newest, 1, eyr, eyi, this.mu);
+      if (outX !== null && outY !== null) {
+        outX[2 * k] = z[0];
+        outX[2 * k + 1] = z[1];
+        outY[2 * k] = z[2];
+        outY[2 * k + 1] = z[3];
+        const p = 2 * this.errorPos;
+        this.errors[p] = exr * exr + exi * exi;
+        this.errors[p + 1] = eyr * eyr + eyi * eyi;
+        this.errorPos = this.errorPos + 1 === ERROR_WINDOW ? 0 : this.errorPos + 1;
+        if (this.errorFill < ERROR_WINDOW) this.errorFill++;
+      }
+    }
+  }
+}
+
+/** Nearest level of one axis of square QAM: (2i − (L − 1))·scale, i = clamp(round((v/scale + L − 1)/2)). */
+function level(v: number, scale: number, top: number): number {
+  let i = Math.round((v / scale + top) * 0.5);
+  if (i < 0) i = 0;
+  else if (i > top) i = top;
+  return (2 * i - top) * scale;
+}
