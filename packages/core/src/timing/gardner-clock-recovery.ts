@@ -2,7 +2,10 @@ import { type FieldBlock, fieldBlock } from '../pipeline/blocks.js';
 import { BlockError, OptionError, type Stage, type StageRecord } from '../pipeline/stage.js';
 import { dotComplex, InterpolationKernel } from '../resample/interpolation-kernel.js';
 import { type ComplexArray, complexArray } from '../signal/complex.js';
-import { squareTimingEstimate } from './square-timing.js';
+import { squareTimingEstimate, squareTimingTone, type TimingTone } from './square-timing.js';
+
+/** Samples per segment of the clock-offset acquisition. */
+const ACQUISITION_SEGMENT = 2048;
 
 /** Options of {@link gardnerClockRecovery}. */
 export interface GardnerOptions {
@@ -22,8 +25,16 @@ export interface GardnerOptions {
    * from the first input sample, in [0, 2).
    */
   readonly initialTiming?: 'square-timing' | number;
-  /** Samples of the acquisition span (default 4,096). */
+  /** Samples of the acquisition span (default 16,384). */
   readonly acquisitionSamples?: number;
+  /**
+   * Estimate the clock offset on the acquisition span and start the loop's
+   * integrator there (default true; with 'square-timing' only): the timing
+   * line's phase on consecutive segments of 2,048 samples drifts by the
+   * offset, so a loop narrow enough to be quiet need not pull a large
+   * offset in by itself (±200 ppm and more at 2 samples per symbol).
+   */
+  readonly acquireClockOffset?: boolean;
 }
 
 /** What {@link gardnerClockRecovery} reports. */
@@ -38,6 +49,14 @@ export interface GardnerDiagnostics {
   readonly symbols: number;
   /** Initial timing used, samples. */
   readonly initialTiming: number;
+  /** Clock offset estimated on the acquisition span and loaded into the integrator, ppm (0 when not estimated or not trusted). */
+  readonly acquiredClockOffsetPpm: number;
+  /**
+   * How consistently the timing line turned from segment to segment of the
+   * acquisition span, 0…1 (|Σ c₍ₛ₊₁₎·c*ₛ| / Σ |c₍ₛ₊₁₎|·|cₛ|); below 0.5 the
+   * offset estimate is not used (NaN when not estimated).
+   */
+  readonly acquisitionCoherence: number;
   /** Mean-square normalized detector output over the last 1,024 symbols (small when locked). */
   readonly errorPower: number;
   /** Detector gain K_p used, per symbol of timing error. */
@@ -68,6 +87,15 @@ export interface GardnerDiagnostics {
  * A second-order loop tracks a frequency offset with no steady-state
  * timing error; the tests lock on ±20 and ±50 ppm at the default
  * B_nT = 5e-4.
+ *
+ * Acquisition: the symbol instants are placed, and the clock offset
+ * estimated, on the first `acquisitionSamples` samples, cut into segments
+ * of S = 2,048 samples: the square-timing line cₛ of each (Oerder & Meyr)
+ * turns from one segment to the next by the offset δ (instants every
+ * 2(1 + δ) samples: a drift of S·δ samples per segment, a turn of π·S·δ),
+ * so δ̂ = −arg(Σₛ c₍ₛ₊₁₎·c*ₛ)/(π·S), unambiguous for |δ| < 1/S (±488 ppm),
+ * and I starts at −δ̂. The first instant is the first segment's, carried
+ * back from its centre by the drift.
  *
  * The interpolator is a Kaiser-windowed sinc (flat to 70 dB up to 0.4
  * cycles per sample, i.e. roll-offs up to 0.6).
@@ -115,6 +143,7 @@ class GardnerClockRecovery implements Stage<'twoSps', 'twoSps', GardnerDiagnosti
   private readonly damping: number;
   private readonly initial: 'square-timing' | number;
   private readonly acquisition: number;
+  private readonly acquireOffset: boolean;
   private readonly kp: number;
   private readonly k1: number;
   private readonly k2: number;
@@ -145,6 +174,8 @@ class GardnerClockRecovery implements Stage<'twoSps', 'twoSps', GardnerDiagnosti
   private errRecent = 0;
   private integAcc = 0;
   private integRecent = Number.NaN;
+  private acquiredPpm = 0;
+  private coherence = Number.NaN;
 
   constructor(o: GardnerOptions) {
     this.rollOff = o.rollOff ?? 0.1;
@@ -159,10 +190,13 @@ class GardnerClockRecovery implements Stage<'twoSps', 'twoSps', GardnerDiagnosti
     if (this.initial !== 'square-timing' && !(typeof this.initial === 'number' && this.initial >= 0 && this.initial < 2)) {
       throw new OptionError(this.name, 'initialTiming', "'square-timing' or a number of samples in [0, 2)", o.initialTiming);
     }
-    this.acquisition = o.acquisitionSamples ?? 4096;
+    this.acquisition = o.acquisitionSamples ?? 16384;
     if (!Number.isInteger(this.acquisition) || this.acquisition < 64) {
       throw new OptionError(this.name, 'acquisitionSamples', 'an integer ≥ 64', o.acquisitionSamples);
     }
+    this.acquireOffset = o.acquireClockOffset ?? true;
+    if (typeof this.acquireOffset !== 'boolean')
+      throw new OptionError(this.name, 'acquireClockOffset', 'true or false', o.acquireClockOffset);
     this.kp = gardnerDetectorGain(this.rollOff);
     const z = this.damping;
     const th = this.bandwidth / (z + 1 / (4 * z));
@@ -221,6 +255,8 @@ class GardnerClockRecovery implements Stage<'twoSps', 'twoSps', GardnerDiagnosti
     this.errRecent = 0;
     this.integAcc = 0;
     this.integRecent = Number.NaN;
+    this.acquiredPpm = 0;
+    this.coherence = Number.NaN;
   }
 
   diagnostics(): GardnerDiagnostics {
@@ -228,6 +264,8 @@ class GardnerClockRecovery implements Stage<'twoSps', 'twoSps', GardnerDiagnosti
       clockOffsetPpm: -(Number.isNaN(this.integRecent) ? this.integ : this.integRecent) * 1e6,
       symbols: this.symbols,
       initialTiming: this.t0,
+      acquiredClockOffsetPpm: this.acquiredPpm,
+      acquisitionCoherence: this.coherence,
       errorPower: this.errRecent,
       detectorGain: this.kp,
     };
@@ -242,6 +280,7 @@ class GardnerClockRecovery implements Stage<'twoSps', 'twoSps', GardnerDiagnosti
         damping: this.damping,
         initialTiming: this.initial,
         acquisitionSamples: this.acquisition,
+        acquireClockOffset: this.acquireOffset,
       },
     };
   }
@@ -262,11 +301,51 @@ class GardnerClockRecovery implements Stage<'twoSps', 'twoSps', GardnerDiagnosti
         const off = 2 * this.H; // skip the leading zeros
         const x = this.bufX.subarray(off, off + 2 * n) as ComplexArray;
         const y = this.bufY.subarray(off, off + 2 * n) as ComplexArray;
-        const eps = squareTimingEstimate(x, y);
-        this.t = eps < 0 ? 2 * (eps + 1) : 2 * eps;
+        this.t = this.acquire(x, y, n);
       }
     }
     this.t0 = this.t;
+  }
+
+  /**
+   * The first symbol instant (samples in [0, 2)) from the acquisition span
+   * of n samples, and, when asked and the span holds two segments or more,
+   * the clock offset loaded into the integrator (see the class doc).
+   */
+  private acquire(x: ComplexArray, y: ComplexArray, n: number): number {
+    const segments = Math.floor(n / ACQUISITION_SEGMENT);
+    const wrap = (eps: number) => {
+      const t = 2 * (eps - Math.floor(eps));
+      return t >= 2 ? 0 : t;
+    };
+    if (!this.acquireOffset || segments < 2) return wrap(squareTimingEstimate(x, y));
+    let sumRe = 0;
+    let sumIm = 0;
+    let sumMag = 0;
+    let prev: TimingTone | null = null;
+    let first: TimingTone | null = null;
+    for (let s = 0; s < segments; s++) {
+      const from = 2 * s * ACQUISITION_SEGMENT;
+      const to = from + 2 * ACQUISITION_SEGMENT;
+      const tone = squareTimingTone(x.subarray(from, to) as ComplexArray, y.subarray(from, to) as ComplexArray);
+      if (prev) {
+        // c₍ₛ₊₁₎·c*ₛ
+        sumRe += tone.re * prev.re + tone.im * prev.im;
+        sumIm += tone.im * prev.re - tone.re * prev.im;
+        sumMag += Math.hypot(tone.re, tone.im) * Math.hypot(prev.re, prev.im);
+      }
+      first ??= tone;
+      prev = tone;
+    }
+    this.coherence = sumMag > 0 ? Math.hypot(sumRe, sumIm) / sumMag : 0;
+    const tone = first as TimingTone;
+    const eps0 = -Math.atan2(tone.im, tone.re) / (2 * Math.PI);
+    if (!(this.coherence >= 0.5)) return wrap(eps0);
+    const delta = -Math.atan2(sumIm, sumRe) / (Math.PI * ACQUISITION_SEGMENT);
+    this.integ = -delta;
+    this.acquiredPpm = delta * 1e6;
+    // The first segment's line sits at its centre: carry it back by the drift over half a segment.
+    return wrap(eps0 - (delta * ACQUISITION_SEGMENT) / 4);
   }
 
   private append(x: ComplexArray, y: ComplexArray): void {

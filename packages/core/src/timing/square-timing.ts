@@ -30,6 +30,30 @@ function kernel(): InterpolationKernel {
  * @example const eps = squareTimingEstimate(block.x, block.y); // symbol 0 at ε̂·2 samples
  */
 export function squareTimingEstimate(x: ComplexArray, y?: ComplexArray): number {
+  const tone = squareTimingTone(x, y);
+  let eps = -Math.atan2(tone.im, tone.re) / (2 * Math.PI);
+  if (eps >= 0.5) eps -= 1;
+  return eps;
+}
+
+/** The spectral line at 1/T of the squared signal that {@link squareTimingEstimate} reads, with the power it came from. */
+export interface TimingTone {
+  /** Real part of Σₙ (|x(nT/4)|² + |y(nT/4)|²)·e^(−j2πn/4). */
+  readonly re: number;
+  /** Imaginary part of the same sum. */
+  readonly im: number;
+  /** Σₙ (|x(nT/4)|² + |y(nT/4)|²) over the same samples: the line's magnitude over it measures how strong the line is. */
+  readonly power: number;
+}
+
+/**
+ * The line at 1/T of the squared signal of {@link squareTimingEstimate}
+ * (its phase gives the timing: ε̂ = −arg/2π), and the signal power it was
+ * summed over.
+ * @throws RangeError for fewer than 64 samples, or y of another length
+ * @example const tone = squareTimingTone(x, y); Math.hypot(tone.re, tone.im) / tone.power // line strength
+ */
+export function squareTimingTone(x: ComplexArray, y?: ComplexArray): TimingTone {
   const n = x.length >> 1;
   if (n < 64) throw new RangeError(`squareTimingEstimate: expected at least 64 samples, received ${n}`);
   if (y && y.length !== x.length) throw new RangeError(`squareTimingEstimate: x has ${n} samples, y has ${y.length >> 1}`);
@@ -40,6 +64,7 @@ export function squareTimingEstimate(x: ComplexArray, y?: ComplexArray): number 
   const mid = complexArray(1);
   let re = 0;
   let im = 0;
+  let power = 0;
   // Sample 2m at 4 per symbol is input m; sample 2m + 1 is the midpoint m + ½.
   // e^(−j2πn/4) over n = 2m, 2m + 1 is (−1)^m·(1, −j).
   for (let m = H - 1; m < n - H; m++) {
@@ -55,8 +80,7 @@ export function squareTimingEstimate(x: ComplexArray, y?: ComplexArray): number 
     // The sum starts at m = H − 1, not 0: the phase reference (−1)^m keeps n = 2m.
     re += s * p;
     im -= s * q;
+    power += p + q;
   }
-  let eps = -Math.atan2(im, re) / (2 * Math.PI);
-  if (eps >= 0.5) eps -= 1;
-  return eps;
+  return { re, im, power };
 }
