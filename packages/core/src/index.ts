@@ -78,6 +78,7 @@ export * from './equalizer/update-rule.js';
 export * from './filter/fir.js';
 export * from './frontend/combine-channels.js';
 export { type DeskewChannelsDiagnostics, type DeskewChannelsOptions, deskewChannels } from './frontend/deskew-channels.js';
+export * from './frontend/iq-skew.js';
 export {
   type ChannelValues,
   type NormalizeChannelsDiagnostics,
@@ -123,5 +124,5 @@ export {
   gardnerClockRecovery,
   gardnerDetectorGain,
 } from './timing/gardner-clock-recovery.js';
-export { squareTimingEstimate } from './timing/square-timing.js';
+export { squareTimingEstimate, squareTimingTone, type TimingTone } from './timing/square-timing.js';
 export { LIBRARY_VERSION } from './version.js';

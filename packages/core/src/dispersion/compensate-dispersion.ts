@@ -1,6 +1,9 @@
+import { deskewChannels } from '../frontend/deskew-channels.js';
+import { channelsToField, estimateIqSkew, fieldToChannels, type IqSkewEstimate } from '../frontend/iq-skew.js';
 import { type FieldBlock, fieldBlock } from '../pipeline/blocks.js';
 import { BlockError, OptionError, type Stage, type StageRecord } from '../pipeline/stage.js';
 import { type ComplexArray, concatComplex } from '../signal/complex.js';
+import type { DualPol } from '../signal/dual-pol.js';
 import { type BlindDispersionOptions, estimateDispersion } from './blind-dispersion.js';
 import { cdTapCount, dispersionCompensationResponse } from './dispersion-filter.js';
 import { OverlapSave, overlapSaveSize } from './overlap-save.js';
@@ -26,6 +29,19 @@ export interface CompensateDispersionOptions {
   readonly wavelengthNm?: number;
   /** FFT size, a power of two larger than twice the overlap (default: the cheapest per sample). */
   readonly fftSize?: number;
+  /**
+   * 'estimate': estimate the receiver's I/Q skew of each polarization on
+   * the first `iqSkewSamples` samples (held back until they arrive) and
+   * remove it from the rails before the dispersion (see
+   * {@link estimateIqSkew}). A skew is a delay of one rail, which the
+   * dispersion compensation would turn into an image of the field that no
+   * later equalizer removes, so it is undone here, where the dispersion is
+   * known. Absent: no skew handling (a skew given by the descriptor is
+   * removed at the scope's rate by the `deskew` stage instead).
+   */
+  readonly iqSkew?: 'estimate';
+  /** Samples per polarization of the skew estimate (integer ≥ 4,096, default 131,072). */
+  readonly iqSkewSamples?: number;
 }
 
 /** What {@link compensateDispersion} did. */
@@ -42,6 +58,8 @@ export interface CompensateDispersionDiagnostics {
   readonly overlap: number;
   /** The blind estimate's cost at its minimum (NaN when given). */
   readonly cost: number;
+  /** The I/Q skew found and removed (see {@link estimateIqSkew}; a NaN skew is not removed); null when not estimated. */
+  readonly iqSkew: IqSkewEstimate | null;
 }
 
 /**
@@ -80,7 +98,12 @@ class CompensateDispersion implements Stage<'twoSps', 'twoSps', CompensateDisper
   private readonly wavelengthNm: number;
   private readonly fftSizeOption: number | undefined;
   private readonly record: CompensateDispersionOptions;
+  private readonly skewSamples: number;
   private ex: OverlapSave | null = null;
+  private response: ComplexArray | null = null;
+  private overlap = 0;
+  private deskew: Stage<'channels', 'channels', unknown> | null = null;
+  private skew: IqSkewEstimate | null = null;
   private ey: OverlapSave | null = null;
   private held: FieldBlock<'twoSps'>[] = [];
   private heldCount = 0;
@@ -129,6 +152,15 @@ class CompensateDispersion implements Stage<'twoSps', 'twoSps', CompensateDisper
       }
       this.blindSamples = s;
     }
+    if (o.iqSkew !== undefined && o.iqSkew !== 'estimate') throw new OptionError(this.name, 'iqSkew', "'estimate'", o.iqSkew);
+    this.skewSamples = o.iqSkew === 'estimate' ? (o.iqSkewSamples ?? 131_072) : 0;
+    if (o.iqSkew === 'estimate' && !(Number.isInteger(this.skewSamples) && this.skewSamples >= 4096))
+      throw new OptionError(this.name, 'iqSkewSamples', 'an integer ≥ 4096', o.iqSkewSamples);
+  }
+
+  /** Samples held at the start: for the blind estimate and the skew estimate. */
+  private get span(): number {
+    return Math.max(this.blindSamples, this.skewSamples);
   }
 
   process(block: FieldBlock<'twoSps'>): FieldBlock<'twoSps'> {
@@ -140,11 +172,11 @@ class CompensateDispersion implements Stage<'twoSps', 'twoSps', CompensateDisper
     }
     this.sampleRate = block.sampleRate;
     if (!this.ex) {
-      if (this.given !== null) this.build(this.given);
+      if (this.span === 0) this.build(this.given as number);
       else {
         this.held.push(block);
         this.heldCount += block.x.length >> 1;
-        if (this.heldCount < this.blindSamples)
+        if (this.heldCount < this.span)
           return fieldBlock(
             'twoSps',
             block.x.subarray(0, 0) as ComplexArray,
@@ -155,14 +187,14 @@ class CompensateDispersion implements Stage<'twoSps', 'twoSps', CompensateDisper
         return this.releaseHeld();
       }
     }
-    return this.filter(block.x, block.y);
+    return this.filter(block);
   }
 
   flush(): FieldBlock<'twoSps'> | null {
     if (Number.isNaN(this.sampleRate)) return null;
     const parts: FieldBlock<'twoSps'>[] = [];
     if (!this.ex) {
-      if (this.heldCount < 1024) {
+      if (this.blind !== null && this.heldCount < 1024) {
         // Too short to estimate anything: pass the samples through untouched.
         const x = concatComplex(this.held.map((b) => b.x));
         const y = concatComplex(this.held.map((b) => b.y));
@@ -172,15 +204,26 @@ class CompensateDispersion implements Stage<'twoSps', 'twoSps', CompensateDisper
       }
       parts.push(this.releaseHeld());
     }
+    const rest = this.deskew?.flush();
+    if (rest) parts.push(this.filter(channelsToField(rest), false));
     const x = this.ex!.flush();
     const y = this.ey!.flush();
     if (parts.length === 0) return fieldBlock('twoSps', x, y, this.sampleRate, 2);
-    return fieldBlock('twoSps', concatComplex([parts[0].x, x]), concatComplex([parts[0].y, y]), this.sampleRate, 2);
+    return fieldBlock(
+      'twoSps',
+      concatComplex([...parts.map((b) => b.x), x]),
+      concatComplex([...parts.map((b) => b.y), y]),
+      this.sampleRate,
+      2,
+    );
   }
 
   reset(): void {
     this.ex = null;
     this.ey = null;
+    this.response = null;
+    this.deskew = null;
+    this.skew = null;
     this.held = [];
     this.heldCount = 0;
     this.value = Number.NaN;
@@ -197,6 +240,7 @@ class CompensateDispersion implements Stage<'twoSps', 'twoSps', CompensateDisper
       fftSize: this.ex?.fftSize ?? 0,
       overlap: this.ex?.overlap ?? 0,
       cost: this.cost,
+      iqSkew: this.skew,
     };
   }
 
@@ -210,6 +254,8 @@ class CompensateDispersion implements Stage<'twoSps', 'twoSps', CompensateDisper
         blind: this.blind ? { ...this.blind } : null,
         wavelengthNm: this.wavelengthNm,
         fftSize: this.fftSizeOption ?? null,
+        iqSkew: this.skewSamples > 0 ? 'estimate' : null,
+        ...(this.skewSamples > 0 ? { iqSkewSamples: this.skewSamples } : {}),
       },
     };
   }
@@ -219,10 +265,31 @@ class CompensateDispersion implements Stage<'twoSps', 'twoSps', CompensateDisper
     const y = concatComplex(this.held.map((b) => b.y));
     this.held = [];
     this.heldCount = 0;
-    const e = estimateDispersion(x, y, this.sampleRate, { ...this.blind, samples: this.blindSamples });
-    this.cost = e.cost;
-    this.build(e.dispersionPsPerNm);
-    return this.filter(x, y);
+    if (this.blind !== null) {
+      const e = estimateDispersion(x, y, this.sampleRate, { ...this.blind, samples: this.blindSamples });
+      this.cost = e.cost;
+      this.build(e.dispersionPsPerNm);
+    } else this.build(this.given as number);
+    if (this.skewSamples > 0 && x.length >= 2 * 1024) this.startDeskew(x, y);
+    return this.filter({ x, y }, true);
+  }
+
+  /** Estimates the I/Q skews on the start of the held samples and sets up their removal. */
+  private startDeskew(x: ComplexArray, y: ComplexArray): void {
+    const n = Math.min(x.length >> 1, this.skewSamples);
+    const span = { x: x.subarray(0, 2 * n) as ComplexArray, y: y.subarray(0, 2 * n) as ComplexArray };
+    const response = this.response as ComplexArray;
+    const compensate = (f: DualPol): DualPol => {
+      const run = (z: ComplexArray) => {
+        const os = new OverlapSave(response, this.overlap);
+        return concatComplex([os.process(z), os.flush()]);
+      };
+      return { x: run(f.x), y: run(f.y) };
+    };
+    this.skew = estimateIqSkew(span, this.sampleRate / 2, compensate);
+    const xq = Number.isNaN(this.skew.xPs) ? 0 : this.skew.xPs;
+    const yq = Number.isNaN(this.skew.yPs) ? 0 : this.skew.yPs;
+    if (xq !== 0 || yq !== 0) this.deskew = deskewChannels({ skewPs: { xq, yq } });
   }
 
   private build(psPerNm: number): void {
@@ -235,11 +302,19 @@ class CompensateDispersion implements Stage<'twoSps', 'twoSps', CompensateDisper
       throw new OptionError(this.name, 'fftSize', `a power of two above the overlap of ${overlap} samples`, n);
     }
     const response = dispersionCompensationResponse(n, this.sampleRate, psPerNm, lambda);
+    this.response = response;
+    this.overlap = overlap;
     this.ex = new OverlapSave(response, overlap);
     this.ey = new OverlapSave(response, overlap);
   }
 
-  private filter(x: ComplexArray, y: ComplexArray): FieldBlock<'twoSps'> {
+  /** Deskews the rails (when a skew is removed; not for what the deskew flushed) and compensates. */
+  private filter(f: DualPol, deskew = true): FieldBlock<'twoSps'> {
+    let { x, y } = f;
+    if (deskew && this.deskew) {
+      const block = fieldBlock('twoSps', x, y, this.sampleRate, 2);
+      ({ x, y } = channelsToField(this.deskew.process(fieldToChannels(block))));
+    }
     return fieldBlock('twoSps', this.ex!.process(x), this.ey!.process(y), this.sampleRate, 2);
   }
 }

@@ -77,8 +77,14 @@ export interface ReceiverSettings {
   readonly blindDispersion?: BlindDispersionOptions;
   /** Differential group delay to expect, ps (default 10): sizes the equalizer. */
   readonly expectedDgdPs?: number;
-  /** Known receiver skews per channel, ps (default none: no deskew stage). */
+  /** Known receiver skews per channel, ps (default none: no deskew stage, and the I/Q skews are estimated). */
   readonly skewPs?: Partial<Readonly<Record<ChannelName, number>>>;
+  /**
+   * Estimate each polarization's I/Q skew when `skewPs` does not give the
+   * skews, and remove it before the dispersion compensation (default true;
+   * see {@link estimateIqSkew}).
+   */
+  readonly estimateSkew?: boolean;
   /** Options passed to the stages the chain builds. */
   readonly options?: {
     /** Options of the `normalize` slot ({@link normalizeChannels}). */
@@ -134,6 +140,8 @@ export interface ResolvedReceiverSettings {
   readonly dispersionPsPerNm: number | null;
   /** Whether the dispersion is estimated blindly. */
   readonly estimateDispersion: boolean;
+  /** Whether the I/Q skews are estimated (no skews given). */
+  readonly estimateSkew: boolean;
   /** Differential group delay the equalizer is sized for, ps. */
   readonly expectedDgdPs: number;
   /** Taps per filter of the 2×2 equalizer (odd). */
@@ -214,13 +222,14 @@ export function defaultReceiver(settings: ReceiverSettings): ReceiverChain {
     matchedFilter: r.matchedFilter ?? rrcMatchedFilter({ rollOff: s.rollOff }),
     dispersion:
       r.dispersion ??
-      compensateDispersion(
-        s.dispersionPsPerNm !== null
+      compensateDispersion({
+        ...(s.dispersionPsPerNm !== null
           ? { dispersionPsPerNm: s.dispersionPsPerNm }
           : s.estimateDispersion
             ? { blind: settings.blindDispersion ?? true }
-            : { dispersionPsPerNm: 0 },
-      ),
+            : { dispersionPsPerNm: 0 }),
+        ...(s.estimateSkew ? { iqSkew: 'estimate' as const } : {}),
+      }),
     // A narrower loop than the stage's default: Gardner's detector is noisy at
     // roll-off 0.1, and 1e-4 of the symbol rate saves 0.1 dB with DGD while
     // still following ±20 ppm (a wider loop suits larger clock offsets).
@@ -262,6 +271,8 @@ function resolve(settings: ReceiverSettings): ResolvedReceiverSettings {
   const dgd = settings.expectedDgdPs ?? 10;
   if (!(dgd >= 0) || !Number.isFinite(dgd)) fail('expectedDgdPs', 'a DGD ≥ 0 ps', dgd);
   const estimate = settings.estimateDispersion ?? true;
+  const estimateSkew = settings.estimateSkew ?? true;
+  if (typeof estimateSkew !== 'boolean') fail('estimateSkew', 'true or false', estimateSkew);
   const residual = d === undefined && estimate ? BLIND_RESIDUAL_PS_PER_NM : 0;
   return {
     modulation: settings.modulation,
@@ -270,6 +281,7 @@ function resolve(settings: ReceiverSettings): ResolvedReceiverSettings {
     rollOff,
     dispersionPsPerNm: d ?? null,
     estimateDispersion: d === undefined && estimate,
+    estimateSkew: estimateSkew && !settings.skewPs,
     expectedDgdPs: dgd,
     equalizerTaps: settings.options?.equalizer?.taps ?? equalizerTapsFor(dgd, residual, settings.symbolRate),
     phaseRecovery: settings.modulation === 'qpsk' ? 'viterbi-viterbi' : 'blind-phase-search',

@@ -13,6 +13,7 @@ import {
   deskewChannels,
   differentialQuadrantDecoder,
   type FieldBlock,
+  fieldBlock,
   firFilter,
   frequencyOffsetRecovery,
   gardnerClockRecovery,
@@ -22,6 +23,7 @@ import {
   resampleAndMatchedFilter,
   resampleToTwoSps,
   rrcMatchedFilter,
+  simulate,
   viterbiViterbi,
 } from '../../src/index.js';
 
@@ -38,6 +40,29 @@ export interface CatalogEntry {
 }
 
 /** Random complex dual-pol block of `n` samples in domain `d`. */
+/** A simulated QPSK field at 2 samples per symbol whose xq rail is 5 ps late: a timing line to find the skew by. */
+function skewedField(samples: number, seed: number): BlockOf<'twoSps'> {
+  const cap = simulate({
+    seed,
+    modulation: 'qpsk',
+    symbols: samples / 2,
+    symbolRate: 32e9,
+    rollOff: 0.5,
+    channel: { esN0Db: 20, dispersionPsPerNm: 200 },
+    receiver: { skewPs: { xq: 5 } },
+  });
+  const { xi, xq, yi, yq } = cap.channels;
+  const x = complexArray(samples);
+  const y = complexArray(samples);
+  for (let k = 0; k < samples; k++) {
+    x[2 * k] = xi[k];
+    x[2 * k + 1] = xq[k];
+    y[2 * k] = yi[k];
+    y[2 * k + 1] = yq[k];
+  }
+  return fieldBlock('twoSps', x, y, 64e9, 2);
+}
+
 export function randomField<D extends 'field' | 'twoSps' | 'symbols'>(
   d: D,
   n: number,
@@ -192,6 +217,11 @@ export const stageCatalog: CatalogEntry[] = [
     name: 'compensate-dispersion (blind, estimation span across blocks)',
     make: () => compensateDispersion({ blind: { samples: 1024, minPsPerNm: 0, maxPsPerNm: 2000 } }),
     input: () => randomField('twoSps', 1500, 14),
+  },
+  {
+    name: 'compensate-dispersion (given, I/Q skew estimated and removed)',
+    make: () => compensateDispersion({ dispersionPsPerNm: 200, iqSkew: 'estimate', iqSkewSamples: 4096 }),
+    input: () => skewedField(5000, 45),
   },
   {
     name: 'gardner-clock-recovery (square-timing start across blocks)',

@@ -1,0 +1,99 @@
+import type { ChannelBlock, FieldBlock } from '../pipeline/blocks.js';
+import { type ComplexArray, complexArray } from '../signal/complex.js';
+import type { DualPol } from '../signal/dual-pol.js';
+import { squareTimingTone } from '../timing/square-timing.js';
+
+/** What {@link estimateIqSkew} found for each polarization. */
+export interface IqSkewEstimate {
+  /** Delay of the xq channel relative to xi, ps (NaN when a timing line was too weak to tell). */
+  readonly xPs: number;
+  /** Delay of yq relative to yi, ps (NaN likewise). */
+  readonly yPs: number;
+  /** Strength of the weaker of x's two timing lines, |line| / power (see {@link squareTimingTone}). */
+  readonly strengthX: number;
+  /** The same for y. */
+  readonly strengthY: number;
+}
+
+/**
+ * Weakest timing line trusted, |line| / power. Measured on simulated 32 GBd
+ * DP-16QAM at roll-off 0.1: 0.013–0.027 without dispersion, 0.0075–0.014
+ * with 1,360 ps/nm; a line fades towards 0 when a differential group delay
+ * of half a symbol splits the power evenly between the principal states.
+ */
+export const MIN_TIMING_LINE = 0.003;
+
+/**
+ * Blind receiver I/Q skew from the timing of each rail. A scope channel is
+ * the real (or imaginary) part of the received field delayed by its own
+ * skew; its square carries the symbol clock's spectral line, whose phase
+ * is the channel's timing. Dispersion spreads the pulses and removes that
+ * line, so each rail is taken alone as a field (I + j·0, then 0 + j·Q),
+ * dispersion-compensated, and timed with the square-timing line of
+ * Oerder & Meyr (IEEE Trans. Commun. 36(5), 1988): a rail alone is
+ * ½(s + s̃*) with s the compensated field and s̃ its image (dispersed
+ * twice), so its square keeps ¼ of s's line, at the rail's timing. The skew
+ * of Q relative to I is the difference of the two timings,
+ *
+ *   τ_Q − τ_I = −wrap(arg c_Q − arg c_I)/(2π)·T,
+ *
+ * c the lines and T the symbol period; neither the carrier (the square
+ * removes it) nor the IQ phase error enters. Unambiguous for |τ_Q − τ_I| < T/2.
+ * @param field the received field at 2 samples per symbol, before dispersion compensation (x = xi + j·xq, y = yi + j·yq)
+ * @param symbolRate Rs, Bd
+ * @param compensate removes the dispersion from a whole dual-polarization field at 2 samples per symbol
+ * @example const skew = estimateIqSkew(span, 32e9, (f) => cd(f)); skew.xPs // ≈ 3 for xq 3 ps late
+ */
+export function estimateIqSkew(field: DualPol, symbolRate: number, compensate: (field: DualPol) => DualPol): IqSkewEstimate {
+  const period = 1e12 / symbolRate;
+  const rail = (p: ComplexArray) => {
+    const n = p.length >> 1;
+    const i = complexArray(n);
+    const q = complexArray(n);
+    for (let k = 0; k < n; k++) {
+      i[2 * k] = p[2 * k];
+      q[2 * k + 1] = p[2 * k + 1];
+    }
+    const c = compensate({ x: i, y: q });
+    const ti = squareTimingTone(c.x);
+    const tq = squareTimingTone(c.y);
+    const strength = Math.min(Math.hypot(ti.re, ti.im) / ti.power, Math.hypot(tq.re, tq.im) / tq.power);
+    let d = Math.atan2(tq.im, tq.re) - Math.atan2(ti.im, ti.re);
+    d -= 2 * Math.PI * Math.round(d / (2 * Math.PI));
+    const skew = (-d / (2 * Math.PI)) * period;
+    return { skew: strength >= MIN_TIMING_LINE ? skew : Number.NaN, strength };
+  };
+  const x = rail(field.x);
+  const y = rail(field.y);
+  return { xPs: x.skew, yPs: y.skew, strengthX: x.strength, strengthY: y.strength };
+}
+
+/** A field block's rails as scope channels (xi = Re x, xq = Im x, …), for the channel stages. */
+export function fieldToChannels(block: FieldBlock<'twoSps'>): ChannelBlock {
+  const n = block.x.length >> 1;
+  const xi = new Float64Array(n);
+  const xq = new Float64Array(n);
+  const yi = new Float64Array(n);
+  const yq = new Float64Array(n);
+  for (let k = 0; k < n; k++) {
+    xi[k] = block.x[2 * k];
+    xq[k] = block.x[2 * k + 1];
+    yi[k] = block.y[2 * k];
+    yq[k] = block.y[2 * k + 1];
+  }
+  return { domain: 'channels', xi, xq, yi, yq, sampleRate: block.sampleRate, samplesPerSymbol: block.samplesPerSymbol };
+}
+
+/** Scope channels back into a field of the same rate (the inverse of {@link fieldToChannels}). */
+export function channelsToField(block: ChannelBlock): DualPol {
+  const n = block.xi.length;
+  const x = complexArray(n);
+  const y = complexArray(n);
+  for (let k = 0; k < n; k++) {
+    x[2 * k] = block.xi[k];
+    x[2 * k + 1] = block.xq[k];
+    y[2 * k] = block.yi[k];
+    y[2 * k + 1] = block.yq[k];
+  }
+  return { x, y };
+}
