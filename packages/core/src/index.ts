@@ -30,13 +30,16 @@ export {
 } from './carrier/frequency-offset-stage.js';
 export { removeFrequencyOffset } from './carrier/frequency-removal.js';
 export { estimateLinewidth, LinewidthAccumulator, type LinewidthOptions } from './carrier/linewidth.js';
-export { type PhaseKernel, runKernel } from './carrier/phase-kernel.js';
+export * from './carrier/dual-phase.js';
+export { type PairPhaseKernel, type PhaseKernel, runKernel } from './carrier/phase-kernel.js';
+export * from './carrier/phase-window.js';
 export {
   type BlindPhaseSearchStageOptions,
   blindPhaseSearch,
   PHASE_TRACE_POINTS,
   type PhaseRecoveryDiagnostics,
   type PhaseRecoveryOptions,
+  type PhaseWindowDiagnostics,
   type ViterbiViterbiStageOptions,
   viterbiViterbi,
 } from './carrier/phase-recovery-stage.js';
@@ -95,6 +98,7 @@ export {
 } from './frontend/orthogonalize-iq.js';
 export * from './hash/sha256.js';
 export * from './modulation/constellation.js';
+export * from './modulation/moment-snr.js';
 export * from './physics/jones.js';
 export * from './physics/link.js';
 export * from './pipeline/blocks.js';

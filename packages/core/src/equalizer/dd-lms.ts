@@ -62,14 +62,17 @@ const ACQUIRE_FORGET = 1 - 1 / 16;
  * @example const rule: DdLmsRule = ddLmsRule('16qam', 3e-4); rule.loopState(0).phase;
  */
 export class DdLmsRule implements UpdateRule {
-  readonly name = 'dd-lms';
+  readonly name: string = 'dd-lms';
   private readonly levels: number;
   private readonly scale: number;
-  private readonly kp: number;
-  private readonly ki: number;
-  /** Loop phase θ and frequency ν (rad per symbol) per polarization. */
-  private readonly theta = new Float64Array(2);
-  private readonly nu = new Float64Array(2);
+  /** Proportional gain kp of the phase loop. */
+  protected readonly kp: number;
+  /** Integral gain ki of the phase loop. */
+  protected readonly ki: number;
+  /** Loop phase θ per polarization, rad. */
+  protected readonly theta = new Float64Array(2);
+  /** Loop frequency ν per polarization, rad per symbol. */
+  protected readonly nu = new Float64Array(2);
   /** Acquisition sum: exponentially weighted Σz⁴ per polarization. */
   private readonly s4 = new Float64Array(4);
 
@@ -159,5 +162,120 @@ export class DdLmsRule implements UpdateRule {
     if (i < 0) i = 0;
     else if (i > top) i = top;
     return (2 * i - top) * this.scale;
+  }
+}
+
+/**
+ * Where the data-aided equalizer's target for each output comes from: output
+ * symbol k of a polarization should be T(symbols[(k − delay) mod N]), T the
+ * identity or conjugation (what the synchronization with the reference found).
+ */
+export interface TrainingTarget {
+  /** The transmitted symbols this output carries, N (any scale: normalized to unit power). */
+  readonly symbols: Float64Array;
+  /** Output symbol k carries symbols[(k − delay) mod N]. */
+  readonly delay: number;
+  /** True when the output carries their conjugate. */
+  readonly conjugated: boolean;
+}
+
+/** The targets of both outputs of the data-aided equalizer. */
+export interface EqualizerTraining {
+  /** What the x output should carry. */
+  readonly x: TrainingTarget;
+  /** What the y output should carry. */
+  readonly y: TrainingTarget;
+}
+
+/**
+ * Data-aided LMS: {@link ddLmsRule} with the transmitted symbol aₖ in place of
+ * the decision, for an equalizer trained on the known pattern once the
+ * synchronization has found which symbol each output carries:
+ *
+ *   z' = z·e^{−jθ},   e = (aₖ − z')·e^{jθ},   φ = Im(z'·a*ₖ)/|aₖ|²,   θ ← θ + kp·φ + ν,   ν ← ν + ki·φ
+ *
+ * The phase loop locks on the absolute phase of the known symbols from any
+ * start (its detector is sin of the phase error), so no acquisition is
+ * needed; the taps converge from any start as an LMS trained on a known
+ * sequence does (Widrow & Hoff 1960; training sequences: Proakis, Digital
+ * Communications, ch. 10 — *from memory*). It counts the symbols it is
+ * called for per polarization; {@link DataAidedRule.rewind} moves that count back with the
+ * loop, as the equalizer starts over from the capture's first symbol.
+ * @example const rule = dataAidedRule('16qam', 3e-4, training);
+ */
+export function dataAidedRule(
+  modulation: ModulationName | Constellation,
+  stepSize: number,
+  training: EqualizerTraining,
+  loop: PhaseLoopGains = DEFAULT_PHASE_LOOP,
+): DataAidedRule {
+  const c = typeof modulation === 'string' ? constellation(modulation) : modulation;
+  return new DataAidedRule(c, stepSize, loop, training);
+}
+
+/**
+ * The data-aided rule; see {@link dataAidedRule}.
+ * @example const rule: DataAidedRule = dataAidedRule('qpsk', 3e-4, training); rule.loopState(0).phase;
+ */
+export class DataAidedRule extends DdLmsRule {
+  override readonly name = 'data-aided';
+  private readonly targets: { re: Float64Array; im: Float64Array; delay: number }[];
+  /** Symbols seen per polarization (the index k of the next target). */
+  private readonly index = new Float64Array(2);
+
+  constructor(c: Constellation, stepSize: number, loop: PhaseLoopGains, training: EqualizerTraining) {
+    super(c, stepSize, loop);
+    this.targets = [training.x, training.y].map((t) => {
+      const n = t.symbols.length >> 1;
+      let power = 0;
+      for (let i = 0; i < 2 * n; i++) power += t.symbols[i] * t.symbols[i];
+      const g = n > 0 && power > 0 ? 1 / Math.sqrt(power / n) : 0;
+      const re = new Float64Array(n);
+      const im = new Float64Array(n);
+      for (let k = 0; k < n; k++) {
+        re[k] = g * t.symbols[2 * k];
+        im[k] = (t.conjugated ? -g : g) * t.symbols[2 * k + 1];
+      }
+      return { re, im, delay: t.delay };
+    });
+  }
+
+  override error(re: number, im: number, pol: 0 | 1, out: Float64Array): number {
+    const t = this.targets[pol];
+    const n = t.re.length;
+    const k = this.index[pol]++;
+    const j = (((k - t.delay) % n) + n) % n;
+    const ar = t.re[j];
+    const ai = t.im[j];
+    const th = this.theta[pol];
+    const c = Math.cos(th);
+    const s = Math.sin(th);
+    // z' = z·e^{−jθ}
+    const zr = re * c + im * s;
+    const zi = im * c - re * s;
+    const er = ar - zr;
+    const ei = ai - zi;
+    // φ = Im(z'·a*) / |a|²
+    const a2 = ar * ar + ai * ai;
+    const phi = a2 > 0 ? (zi * ar - zr * ai) / a2 : 0;
+    this.theta[pol] = th + this.kp * phi + this.nu[pol];
+    this.nu[pol] += this.ki * phi;
+    out[0] = er * c - ei * s;
+    out[1] = er * s + ei * c;
+    return er * er + ei * ei;
+  }
+
+  /** The known symbols need no acquisition: the loop starts where it is. */
+  override acquire(): void {}
+
+  override rewind(symbols: number): void {
+    super.rewind(symbols);
+    this.index[0] -= symbols;
+    this.index[1] -= symbols;
+  }
+
+  override reset(): void {
+    super.reset();
+    this.index.fill(0);
   }
 }

@@ -18,7 +18,14 @@ import {
   separationIndex,
 } from './butterfly-kernel.js';
 import { cmaRule } from './cma.js';
-import { type DdLmsRule, DEFAULT_PHASE_LOOP, ddLmsRule, type PhaseLoopGains } from './dd-lms.js';
+import {
+  type DdLmsRule,
+  DEFAULT_PHASE_LOOP,
+  dataAidedRule,
+  ddLmsRule,
+  type EqualizerTraining,
+  type PhaseLoopGains,
+} from './dd-lms.js';
 import { rdeRule } from './rde.js';
 import type { RadialTargets, UpdateRule } from './update-rule.js';
 
@@ -110,6 +117,15 @@ export interface EqualizerOptions {
     /** Gains of its carrier-phase loop (default: {@link ddLmsRule}'s). */
     readonly phaseLoop?: PhaseLoopGains;
   };
+  /**
+   * Train on the transmitted symbols instead of adapting blind: each output
+   * is adapted towards the symbols the synchronization found it carries
+   * ({@link dataAidedRule}, with its own phase loop), from the first symbol
+   * on, with step `stepSize.ddLms`; no CMA, RDE or DD-LMS, no retries.
+   * The figure this gives is the best case a blind receiver is compared
+   * against.
+   */
+  readonly training?: EqualizerTraining;
   /**
    * Singularity handling: `orthogonalStart` (default false) derives the
    * y-filters from the x-filters during pre-convergence; `restart` (default
@@ -360,6 +376,7 @@ interface Resolved {
   updateEvery: number;
   initialTaps: EqualizerStart | ButterflyTaps;
   retryStarts: readonly EqualizerStart[];
+  training: EqualizerTraining | null;
   dd: { startSymbol: number; phaseLoop: PhaseLoopGains } | null;
   orthogonalStart: boolean;
   restart: boolean;
@@ -434,7 +451,11 @@ class ButterflyEqualizer implements Stage<'twoSps', 'symbols', EqualizerDiagnost
     this.kurtosis = con.cmaRadius2;
     this.preRule = cmaRule(con, o.mu.preConvergence);
     this.blind = o.blindRule === 'cma' ? cmaRule(con, o.mu.cma) : rdeRule(con, o.mu.rde);
-    this.dd = o.dd ? ddLmsRule(con, o.mu.ddLms, o.dd.phaseLoop) : null;
+    this.dd = o.training
+      ? dataAidedRule(con, o.mu.ddLms, o.training, o.dd?.phaseLoop)
+      : o.dd
+        ? ddLmsRule(con, o.mu.ddLms, o.dd.phaseLoop)
+        : null;
     this.taps = new Float64Array(8 * o.L);
     this.preHold = Math.floor(o.pre / 2);
     this.preDecay = o.pre > this.preHold ? (o.mu.cma / o.mu.preConvergence) ** (1 / (o.pre - this.preHold)) : 1;
@@ -501,7 +522,7 @@ class ButterflyEqualizer implements Stage<'twoSps', 'symbols', EqualizerDiagnost
     const phases: EqualizerPhase[] = [];
     if (o.pre > 0) phases.push({ rule: 'cma', fromSymbol: 0, orthogonalY: o.orthogonalStart });
     phases.push({ rule: this.blind.name, fromSymbol: o.pre, orthogonalY: false });
-    if (o.dd) phases.push({ rule: 'dd-lms', fromSymbol: o.dd.startSymbol, orthogonalY: false });
+    if (o.dd) phases.push({ rule: this.dd?.name ?? 'dd-lms', fromSymbol: o.dd.startSymbol, orthogonalY: false });
     const loopOn = this.dd !== null && o.dd !== null && this.adapted >= o.dd.startSymbol;
     const symbolRate = this.sampleRate / 2;
     const trace = this.trace.result();
@@ -573,6 +594,13 @@ class ButterflyEqualizer implements Stage<'twoSps', 'symbols', EqualizerDiagnost
         initialTaps: taps,
         retryStarts: [...o.retryStarts],
         ddLms: o.dd ? { startSymbol: o.dd.startSymbol, phaseLoop: { ...o.dd.phaseLoop } } : null,
+        // The targets by where they come from (the symbols themselves are the reference's).
+        training: o.training
+          ? {
+              x: { delay: o.training.x.delay, conjugated: o.training.x.conjugated, symbols: o.training.x.symbols.length >> 1 },
+              y: { delay: o.training.y.delay, conjugated: o.training.y.conjugated, symbols: o.training.y.symbols.length >> 1 },
+            }
+          : null,
         singularity: { orthogonalStart: o.orthogonalStart, restart: o.restart, threshold: o.singularThreshold },
         convergence: { window: o.window, threshold: o.convergenceThreshold, dependence: o.dependenceThreshold },
         traceEvery: o.traceEvery,
@@ -985,7 +1013,8 @@ function validate(opt: EqualizerOptions): Resolved {
     rde: positive('stepSize.rde', opt.stepSize?.rde, opt.modulation === '64qam' ? 3e-5 : 1e-4),
     ddLms: positive('stepSize.ddLms', opt.stepSize?.ddLms, 3e-4),
   };
-  const pre = integer('preConvergenceSymbols', opt.preConvergenceSymbols, 8192, 0);
+  // Training adapts on the known symbols from the first one: no blind pre-convergence.
+  const pre = opt.training ? 0 : integer('preConvergenceSymbols', opt.preConvergenceSymbols, 8192, 0);
   const start = opt.convergeOnStart ?? { symbols: 8192, passes: 2 };
   const startSymbols = integer('convergeOnStart.symbols', start.symbols, 8192, 1);
   const passes = integer('convergeOnStart.passes', start.passes, 2, 0, 100);
@@ -1005,11 +1034,22 @@ function validate(opt: EqualizerOptions): Resolved {
       for (const v of f) if (!Number.isFinite(v)) fail(`initialTaps.${k}`, 'finite values', v);
     }
   }
-  const retryStarts = opt.retryStarts ?? ['rotated', 'circular'];
+  const training = opt.training ?? null;
+  if (training !== null) {
+    for (const p of ['x', 'y'] as const) {
+      const t = training[p];
+      if (!(t?.symbols instanceof Float64Array) || t.symbols.length < 2 || t.symbols.length % 2 !== 0)
+        fail(`training.${p}.symbols`, 'transmitted symbols (a non-empty interleaved Float64Array)', t?.symbols);
+      if (!Number.isInteger(t.delay)) fail(`training.${p}.delay`, 'an integer delay in symbols', t.delay);
+      if (typeof t.conjugated !== 'boolean') fail(`training.${p}.conjugated`, 'true or false', t.conjugated);
+    }
+  }
+  const retryStarts = training !== null ? [] : (opt.retryStarts ?? ['rotated', 'circular']);
   if (!Array.isArray(retryStarts) || retryStarts.some((r) => !EQUALIZER_STARTS.includes(r)))
     fail('retryStarts', `a list of ${startNames}`, retryStarts);
   let dd: Resolved['dd'] = null;
-  if (opt.ddLms !== undefined) {
+  if (training !== null) dd = { startSymbol: 0, phaseLoop: opt.ddLms?.phaseLoop ?? DEFAULT_PHASE_LOOP };
+  else if (opt.ddLms !== undefined) {
     const startSymbol = integer('ddLms.startSymbol', opt.ddLms.startSymbol, 0, pre);
     const loop = opt.ddLms.phaseLoop ?? DEFAULT_PHASE_LOOP;
     const kp = loop.proportional;
@@ -1040,6 +1080,7 @@ function validate(opt: EqualizerOptions): Resolved {
     updateEvery,
     initialTaps,
     retryStarts,
+    training,
     dd,
     orthogonalStart,
     restart,

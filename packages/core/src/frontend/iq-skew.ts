@@ -68,7 +68,10 @@ export function estimateIqSkew(field: DualPol, symbolRate: number, compensate: (
   return { xPs: x.skew, yPs: y.skew, strengthX: x.strength, strengthY: y.strength };
 }
 
-/** A field block's rails as scope channels (xi = Re x, xq = Im x, …), for the channel stages. */
+/**
+ * A field block's rails as scope channels (xi = Re x, xq = Im x, …), for the channel stages.
+ * @example const ch = fieldToChannels(block); deskew.process(ch);
+ */
 export function fieldToChannels(block: FieldBlock<'twoSps'>): ChannelBlock {
   const n = block.x.length >> 1;
   const xi = new Float64Array(n);
@@ -84,7 +87,10 @@ export function fieldToChannels(block: FieldBlock<'twoSps'>): ChannelBlock {
   return { domain: 'channels', xi, xq, yi, yq, sampleRate: block.sampleRate, samplesPerSymbol: block.samplesPerSymbol };
 }
 
-/** Scope channels back into a field of the same rate (the inverse of {@link fieldToChannels}). */
+/**
+ * Scope channels back into a field of the same rate (the inverse of {@link fieldToChannels}).
+ * @example const { x, y } = channelsToField(deskew.process(fieldToChannels(block)));
+ */
 export function channelsToField(block: ChannelBlock): DualPol {
   const n = block.xi.length;
   const x = complexArray(n);

@@ -52,12 +52,9 @@ export function analyzeOpenCapture(capture: CaptureDescription, settings: Analys
     ...(capture.descriptor.skewPs ? { skewPs: capture.descriptor.skewPs } : {}),
     estimateDispersion: settings.estimateDispersion ?? true,
   };
-  const result = analyzeCapture(
-    capture.blocks({ blockSize: settings.blockSize }),
-    receiver,
-    capture.reference,
-    settings.analysis,
-  );
+  // Read from the file again on each iteration: a data-aided analysis passes over the capture twice.
+  const blocks = { [Symbol.iterator]: () => capture.blocks({ blockSize: settings.blockSize }) };
+  const result = analyzeCapture(blocks, receiver, capture.reference, settings.analysis);
   return { capture, result };
 }
 
@@ -134,6 +131,7 @@ export function analysisToJson({ capture, result }: FileAnalysis): Record<string
     symbolRate: capture.symbolRate,
     sampleRate: capture.sampleRate,
     ok: result.ok,
+    equalizerTraining: result.equalizerTraining,
     failure: result.failure,
     ...(m ? figures(m) : none),
     freqOffsetHz: result.freqOffsetHz,

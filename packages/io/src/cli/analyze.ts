@@ -32,6 +32,8 @@ Options (each overrides the descriptor):
   --dispersion PSNM     accumulated dispersion to remove, ps/nm
   --no-blind-dispersion remove no dispersion when none is stated (default: estimate it)
   --skip N              leading recovered symbols left out (default 2048)
+  --data-aided          train the equalizer on the transmitted symbols after a blind
+                        pass has aligned them (the best case to compare blind DSP with)
   --pipeline FILE       JSON with "receiver" (stage options) and "analysis" settings
   --out DIR             also write <name>.analysis.json and <name>.symbols.arrow there
   --report FILE         also write a self-contained HTML report there (constellation,
@@ -66,7 +68,11 @@ export function analysisSettingsFrom(command: string, values: Record<string, str
     overrides,
     estimateDispersion: values['no-blind-dispersion'] !== true,
     receiver: pipeline.receiver,
-    analysis: { ...pipeline.analysis, ...(skip !== undefined ? { skipSymbols: skip } : {}) },
+    analysis: {
+      ...pipeline.analysis,
+      ...(skip !== undefined ? { skipSymbols: skip } : {}),
+      ...(values['data-aided'] === true ? { equalizerTraining: 'data-aided' as const } : {}),
+    },
   };
 }
 
@@ -78,6 +84,7 @@ export const ANALYSIS_OPTIONS = {
   dispersion: { type: 'string' },
   'no-blind-dispersion': { type: 'boolean' },
   skip: { type: 'string' },
+  'data-aided': { type: 'boolean' },
   pipeline: { type: 'string' },
 } as const;
 

@@ -6,6 +6,7 @@ import {
   type CycleSlip,
   constellation,
   type DualPol,
+  type dataAidedRule,
   defaultReceiver,
   type FieldBlock,
   LIBRARY_VERSION,
@@ -52,7 +53,21 @@ export interface AnalyzeOptions {
   readonly fitSymbols?: number;
   /** Gather the data of the report's pictures in bounded memory (default false): see {@link PlotData}. */
   readonly plotData?: boolean;
+  /**
+   * How the 2×2 equalizer adapts: 'blind' (the default: CMA and RDE, as a
+   * receiver in the field must) or 'data-aided': a blind pass first finds
+   * which transmitted symbol each output carries, then the capture runs
+   * again with the equalizer trained on those symbols ({@link dataAidedRule}),
+   * the best case that blind processing is compared against. The second
+   * pass's figures are reported, with `equalizerTraining` saying so. Needs
+   * `blocks` that can be read twice (an array, or an iterable that starts
+   * over on each iteration), and costs two passes.
+   */
+  readonly equalizerTraining?: EqualizerTrainingMode;
 }
+
+/** How the equalizer of an analysis was adapted (see {@link AnalyzeOptions.equalizerTraining}). */
+export type EqualizerTrainingMode = 'blind' | 'data-aided';
 
 /** What the report draws beyond the stages' diagnostics, gathered while streaming (bounded memory). */
 export interface PlotData {
@@ -109,6 +124,8 @@ export interface ReproducibilityRecord {
   readonly pipeline: StageRecord;
   /** The analysis options used. */
   readonly analysis: {
+    /** How the equalizer was adapted. */
+    readonly equalizerTraining: EqualizerTrainingMode;
     /** Leading symbols left out. */
     readonly skipSymbols: number;
     /** Trailing symbols left out. */
@@ -128,6 +145,8 @@ export interface ReproducibilityRecord {
 export interface AnalysisResult {
   /** True when every check passed and `measurement` holds valid figures. */
   readonly ok: boolean;
+  /** How the equalizer was adapted: 'blind', or 'data-aided' (trained on the transmitted symbols after a blind pass). */
+  readonly equalizerTraining: EqualizerTrainingMode;
   /** Which check failed and why; null when `ok`. */
   readonly failure: AnalysisFailure | null;
   /** BER, SER, EVM, SNR, Q, GMI, NGMI, MI per polarization and total; null when the analysis failed. */
@@ -181,6 +200,45 @@ export function analyzeCapture(
   settings: ReceiverSettings,
   reference: DualPol,
   options: AnalyzeOptions = {},
+): AnalysisResult {
+  const training = options.equalizerTraining ?? 'blind';
+  if (training !== 'blind' && training !== 'data-aided')
+    throw new OptionError('analyze', 'equalizerTraining', "'blind' or 'data-aided'", training);
+  if (training === 'blind') return analyzeOnce(blocks, settings, reference, options, 'blind');
+  // An iterator is its own iterable: it would give nothing the second time.
+  if ((blocks[Symbol.iterator]() as unknown) === blocks)
+    throw new OptionError(
+      'analyze',
+      'equalizerTraining',
+      "blocks that can be read twice for 'data-aided' (an array, or an iterable that starts over)",
+      'a one-pass iterator',
+    );
+  // The first pass only finds the alignment: nothing of it is kept or handed out.
+  const firstPass = { ...options, keepSymbols: false, plotData: false, onSymbols: undefined };
+  const blind = analyzeOnce(blocks, settings, reference, firstPass, 'blind');
+  const m = blind.measurement;
+  if (!blind.ok || m === null) {
+    const failure = blind.failure as AnalysisFailure;
+    return {
+      ...blind,
+      equalizerTraining: 'data-aided',
+      failure: { ...failure, reason: `the blind pass before the data-aided one failed: ${failure.reason}` },
+    };
+  }
+  const target = (p: 'x' | 'y') => {
+    const a = m.perPol[p].alignment;
+    return { symbols: reference[a.source], delay: a.delay, conjugated: a.conjugated };
+  };
+  const equalizer = { ...settings.options?.equalizer, training: { x: target('x'), y: target('y') } };
+  return analyzeOnce(blocks, { ...settings, options: { ...settings.options, equalizer } }, reference, options, 'data-aided');
+}
+
+function analyzeOnce(
+  blocks: Iterable<ChannelBlock>,
+  settings: ReceiverSettings,
+  reference: DualPol,
+  options: AnalyzeOptions,
+  equalizerTraining: EqualizerTrainingMode,
 ): AnalysisResult {
   const skipSymbols = options.skipSymbols ?? 2048;
   if (!Number.isInteger(skipSymbols) || skipSymbols < 0)
@@ -245,7 +303,7 @@ export function analyzeCapture(
     library: 'intradyne',
     version: LIBRARY_VERSION,
     pipeline: chain.describe(),
-    analysis: { skipSymbols, skipTailSymbols: skipTail, modulationTolerance: tolerance, fitSymbols },
+    analysis: { equalizerTraining, skipSymbols, skipTailSymbols: skipTail, modulationTolerance: tolerance, fitSymbols },
     inputSha256: hasher.hex(),
     samples,
   };
@@ -264,6 +322,7 @@ export function analyzeCapture(
   };
   const failed = (failure: AnalysisFailure, fit: ModulationFit | null = null): AnalysisResult => ({
     ok: false,
+    equalizerTraining,
     failure,
     measurement: null,
     cycleSlips: { count: 0, x: [], y: [] },
@@ -313,6 +372,7 @@ export function analyzeCapture(
   const theory = m.bitErrors > 0 && m.ber < 0.5 ? snrForBer(settings.modulation, m.ber) : null;
   return {
     ok: true,
+    equalizerTraining,
     failure: null,
     measurement: m,
     cycleSlips: { count: slips.x.length + slips.y.length, ...slips },
