@@ -20,6 +20,7 @@ export {
   differentialQuadrantEncode,
   quadrantOf,
 } from './carrier/differential-quadrant.js';
+export * from './carrier/dual-phase.js';
 export { estimateOffsetPeriodogram, type PeriodogramOptions } from './carrier/fourth-power-periodogram.js';
 export {
   type FrequencyEstimate,
@@ -30,9 +31,7 @@ export {
 } from './carrier/frequency-offset-stage.js';
 export { removeFrequencyOffset } from './carrier/frequency-removal.js';
 export { estimateLinewidth, LinewidthAccumulator, type LinewidthOptions } from './carrier/linewidth.js';
-export * from './carrier/dual-phase.js';
 export { type PairPhaseKernel, type PhaseKernel, runKernel } from './carrier/phase-kernel.js';
-export * from './carrier/phase-window.js';
 export {
   type BlindPhaseSearchStageOptions,
   blindPhaseSearch,
@@ -44,6 +43,7 @@ export {
   viterbiViterbi,
 } from './carrier/phase-recovery-stage.js';
 export { QUARTER_TURN, unwrapPhase, wrapAngle } from './carrier/phase-unwrap.js';
+export * from './carrier/phase-window.js';
 export { cycleSlipsFromPhase, type PhaseJumpOptions, PhaseJumpSlipDetector } from './carrier/slips-phase-jump.js';
 export {
   cycleSlipsAgainstReference,
