@@ -1,3 +1,4 @@
+import { MIN_TIMING_LINE } from '../frontend/iq-skew.js';
 import { type FieldBlock, fieldBlock } from '../pipeline/blocks.js';
 import { BlockError, OptionError, type Stage, type StageRecord } from '../pipeline/stage.js';
 import { dotComplex, InterpolationKernel } from '../resample/interpolation-kernel.js';
@@ -57,6 +58,14 @@ export interface GardnerDiagnostics {
    * offset estimate is not used (NaN when not estimated).
    */
   readonly acquisitionCoherence: number;
+  /**
+   * Strength of the timing line over the acquisition span, |Σₛ|cₛ|| / power
+   * (see {@link squareTimingTone}); below {@link MIN_TIMING_LINE} the offset
+   * estimate is not used (NaN when not estimated). A differential group delay
+   * of half a symbol cancels the line of the total power whatever the
+   * polarization state.
+   */
+  readonly acquisitionLineStrength: number;
   /** Mean-square normalized detector output over the last 1,024 symbols (small when locked). */
   readonly errorPower: number;
   /** Detector gain K_p used, per symbol of timing error. */
@@ -176,6 +185,7 @@ class GardnerClockRecovery implements Stage<'twoSps', 'twoSps', GardnerDiagnosti
   private integRecent = Number.NaN;
   private acquiredPpm = 0;
   private coherence = Number.NaN;
+  private lineStrength = Number.NaN;
 
   constructor(o: GardnerOptions) {
     this.rollOff = o.rollOff ?? 0.1;
@@ -257,6 +267,7 @@ class GardnerClockRecovery implements Stage<'twoSps', 'twoSps', GardnerDiagnosti
     this.integRecent = Number.NaN;
     this.acquiredPpm = 0;
     this.coherence = Number.NaN;
+    this.lineStrength = Number.NaN;
   }
 
   diagnostics(): GardnerDiagnostics {
@@ -266,6 +277,7 @@ class GardnerClockRecovery implements Stage<'twoSps', 'twoSps', GardnerDiagnosti
       initialTiming: this.t0,
       acquiredClockOffsetPpm: this.acquiredPpm,
       acquisitionCoherence: this.coherence,
+      acquisitionLineStrength: this.lineStrength,
       errorPower: this.errRecent,
       detectorGain: this.kp,
     };
@@ -322,6 +334,8 @@ class GardnerClockRecovery implements Stage<'twoSps', 'twoSps', GardnerDiagnosti
     let sumRe = 0;
     let sumIm = 0;
     let sumMag = 0;
+    let lines = 0;
+    let power = 0;
     let prev: TimingTone | null = null;
     let first: TimingTone | null = null;
     for (let s = 0; s < segments; s++) {
@@ -336,11 +350,15 @@ class GardnerClockRecovery implements Stage<'twoSps', 'twoSps', GardnerDiagnosti
       }
       first ??= tone;
       prev = tone;
+      lines += Math.hypot(tone.re, tone.im);
+      power += tone.power;
     }
     this.coherence = sumMag > 0 ? Math.hypot(sumRe, sumIm) / sumMag : 0;
+    this.lineStrength = power > 0 ? lines / power : 0;
     const tone = first as TimingTone;
     const eps0 = -Math.atan2(tone.im, tone.re) / (2 * Math.PI);
-    if (!(this.coherence >= 0.5)) return wrap(eps0);
+    // A faint line's phase is noise: its turn from segment to segment says nothing of the clock.
+    if (!(this.coherence >= 0.5 && this.lineStrength >= MIN_TIMING_LINE)) return wrap(eps0);
     const delta = -Math.atan2(sumIm, sumRe) / (Math.PI * ACQUISITION_SEGMENT);
     this.integ = -delta;
     this.acquiredPpm = delta * 1e6;

@@ -19,7 +19,7 @@ import {
 } from '@intradyne/core';
 import { ConstellationDensity, type ConstellationHistogram } from '../density/constellation-density.js';
 import { DEFAULT_FIT_SYMBOLS, type Measurement, MeasurementStream, ReferenceNotFoundError } from '../measure/measure.js';
-import { snrForBer } from '../theory/qam-ber.js';
+import { snrForBer, theoryBer } from '../theory/qam-ber.js';
 
 /** Options of {@link analyzeCapture}. */
 export interface AnalyzeOptions {
@@ -102,6 +102,15 @@ export interface SlipReport {
  * constellation (1 for QPSK, 1.32 for 16QAM, 1.381 for 64QAM): a QPSK
  * stream analysed as 16QAM, whose reference sits on the corner points,
  * shows K near 1 instead of 1.32.
+ *
+ * And are the errors as many as noise of that SNR makes? A denser
+ * constellation analysed as a sparser one (16QAM as QPSK, against a
+ * reference of its quadrants) has its extra points counted as noise: the
+ * measured SNR is low, yet its decisions hardly ever fail. Gaussian noise
+ * at the measured SNR gives the BER of Cho & Yoon (2002); one that the
+ * measurement's 95 % interval puts at most a twentieth of it is not noise
+ * but structure (impairments that distort without noise only ever add
+ * errors).
  */
 export interface ModulationFit {
   /** K measured on the recovered symbols. */
@@ -110,7 +119,11 @@ export interface ModulationFit {
   readonly expected: number;
   /** Largest |measured − expected| accepted. */
   readonly tolerance: number;
-  /** Whether the data fit the stated modulation. */
+  /** The AWGN BER of the stated modulation at the measured SNR (Cho & Yoon 2002). */
+  readonly theoryBer: number;
+  /** The upper end of the measured BER's 95 % interval. */
+  readonly berUpper: number;
+  /** Whether the data fit the stated modulation: the fourth moment within the tolerance, and berUpper > theoryBer/20. */
   readonly fits: boolean;
 }
 
@@ -358,15 +371,12 @@ function analyzeOnce(
   if (referenceFailure !== null || m === null) return failed(referenceFailure as AnalysisFailure);
   const fit = modulationFit(m, settings.modulation, tolerance);
   if (!fit.fits) {
-    return failed(
-      {
-        check: 'modulation',
-        reason:
-          `the recovered symbols do not fit ${settings.modulation}: normalized fourth moment ${fit.measured.toFixed(3)}, ` +
-          `${fit.expected.toFixed(3)} expected at the measured SNR (tolerance ${tolerance})`,
-      },
-      fit,
-    );
+    const reason =
+      Math.abs(fit.measured - fit.expected) > tolerance
+        ? `normalized fourth moment ${fit.measured.toFixed(3)}, ${fit.expected.toFixed(3)} expected at the measured SNR (tolerance ${tolerance})`
+        : `BER at most ${fit.berUpper.toExponential(2)} (95 % interval) where noise at the measured SNR of ` +
+          `${m.snrDb.toFixed(2)} dB gives ${fit.theoryBer.toExponential(2)}: the symbols spread like a denser constellation, not like noise`;
+    return failed({ check: 'modulation', reason: `the recovered symbols do not fit ${settings.modulation}: ${reason}` }, fit);
   }
   const slips = (stream as MeasurementStream).slips();
   const theory = m.bitErrors > 0 && m.ber < 0.5 ? snrForBer(settings.modulation, m.ber) : null;
@@ -447,7 +457,16 @@ function modulationFit(m: Measurement, modulation: Measurement['modulation'], to
     const s2 = m.perPol[p].noiseVariance;
     expected += (k + 4 * s2 + 2 * s2 * s2) / (1 + s2) ** 2 / 2;
   }
-  return { measured, expected, tolerance, fits: Math.abs(measured - expected) <= tolerance };
+  const theory = theoryBer(modulation, m.snrDb);
+  const berUpper = m.berCi95[1];
+  return {
+    measured,
+    expected,
+    tolerance,
+    theoryBer: theory,
+    berUpper,
+    fits: Math.abs(measured - expected) <= tolerance && !(berUpper < theory / 20),
+  };
 }
 
 function sumKnown(a: number, b: number): number {
