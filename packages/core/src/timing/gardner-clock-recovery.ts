@@ -26,7 +26,7 @@ export interface GardnerOptions {
    * from the first input sample, in [0, 2).
    */
   readonly initialTiming?: 'square-timing' | number;
-  /** Samples of the acquisition span (default 16,384). */
+  /** Samples of the acquisition span (default 65,536). */
   readonly acquisitionSamples?: number;
   /**
    * Estimate the clock offset on the acquisition span and start the loop's
@@ -102,9 +102,12 @@ export interface GardnerDiagnostics {
  * of S = 2,048 samples: the square-timing line cₛ of each (Oerder & Meyr)
  * turns from one segment to the next by the offset δ (instants every
  * 2(1 + δ) samples: a drift of S·δ samples per segment, a turn of π·S·δ),
- * so δ̂ = −arg(Σₛ c₍ₛ₊₁₎·c*ₛ)/(π·S), unambiguous for |δ| < 1/S (±488 ppm),
- * and I starts at −δ̂. The first instant is the first segment's, carried
- * back from its centre by the drift.
+ * so the least-squares slope b of the unwrapped phases of cₛ against s
+ * gives δ̂ = −b/(π·S), unambiguous for |δ| < 1/S (±488 ppm), and I starts
+ * at −δ̂ — when the line is strong and steady enough to trust and b is
+ * beyond three of its standard errors (a smaller offset is left to the
+ * loop). The first instant comes from the fitted phase at the first
+ * segment, carried back from its centre by the drift.
  *
  * The interpolator is a Kaiser-windowed sinc (flat to 70 dB up to 0.4
  * cycles per sample, i.e. roll-offs up to 0.6).
@@ -200,7 +203,7 @@ class GardnerClockRecovery implements Stage<'twoSps', 'twoSps', GardnerDiagnosti
     if (this.initial !== 'square-timing' && !(typeof this.initial === 'number' && this.initial >= 0 && this.initial < 2)) {
       throw new OptionError(this.name, 'initialTiming', "'square-timing' or a number of samples in [0, 2)", o.initialTiming);
     }
-    this.acquisition = o.acquisitionSamples ?? 16384;
+    this.acquisition = o.acquisitionSamples ?? 65536;
     if (!Number.isInteger(this.acquisition) || this.acquisition < 64) {
       throw new OptionError(this.name, 'acquisitionSamples', 'an integer ≥ 64', o.acquisitionSamples);
     }
@@ -330,40 +333,59 @@ class GardnerClockRecovery implements Stage<'twoSps', 'twoSps', GardnerDiagnosti
       const t = 2 * (eps - Math.floor(eps));
       return t >= 2 ? 0 : t;
     };
-    if (!this.acquireOffset || segments < 2) return wrap(squareTimingEstimate(x, y));
+    if (!this.acquireOffset || segments < 3) return wrap(squareTimingEstimate(x, y));
+    // The line's phase per segment, unwrapped along the span (a turn of less than π per segment).
+    const phase = new Float64Array(segments);
     let sumRe = 0;
     let sumIm = 0;
     let sumMag = 0;
     let lines = 0;
     let power = 0;
     let prev: TimingTone | null = null;
-    let first: TimingTone | null = null;
     for (let s = 0; s < segments; s++) {
       const from = 2 * s * ACQUISITION_SEGMENT;
       const to = from + 2 * ACQUISITION_SEGMENT;
       const tone = squareTimingTone(x.subarray(from, to) as ComplexArray, y.subarray(from, to) as ComplexArray);
       if (prev) {
         // c₍ₛ₊₁₎·c*ₛ
-        sumRe += tone.re * prev.re + tone.im * prev.im;
-        sumIm += tone.im * prev.re - tone.re * prev.im;
+        const re = tone.re * prev.re + tone.im * prev.im;
+        const im = tone.im * prev.re - tone.re * prev.im;
+        sumRe += re;
+        sumIm += im;
         sumMag += Math.hypot(tone.re, tone.im) * Math.hypot(prev.re, prev.im);
-      }
-      first ??= tone;
+        phase[s] = phase[s - 1] + Math.atan2(im, re);
+      } else phase[s] = Math.atan2(tone.im, tone.re);
       prev = tone;
       lines += Math.hypot(tone.re, tone.im);
       power += tone.power;
     }
     this.coherence = sumMag > 0 ? Math.hypot(sumRe, sumIm) / sumMag : 0;
     this.lineStrength = power > 0 ? lines / power : 0;
-    const tone = first as TimingTone;
-    const eps0 = -Math.atan2(tone.im, tone.re) / (2 * Math.PI);
-    // A faint line's phase is noise: its turn from segment to segment says nothing of the clock.
-    if (!(this.coherence >= 0.5 && this.lineStrength >= MIN_TIMING_LINE)) return wrap(eps0);
-    const delta = -Math.atan2(sumIm, sumRe) / (Math.PI * ACQUISITION_SEGMENT);
+    // Least squares: phase = a + b·(s − s̄); b is the turn per segment, a the phase at the span's centre.
+    const mid = (segments - 1) / 2;
+    let a = 0;
+    let sxy = 0;
+    let sxx = 0;
+    for (let s = 0; s < segments; s++) {
+      a += phase[s] / segments;
+      sxy += (s - mid) * phase[s];
+      sxx += (s - mid) ** 2;
+    }
+    const b = sxy / sxx;
+    let residual = 0;
+    for (let s = 0; s < segments; s++) residual += (phase[s] - a - b * (s - mid)) ** 2;
+    const slopeError = Math.sqrt(residual / (segments - 2) / sxx);
+    // The first segment's centre sits at s = 0 (its line at half a segment from the first sample).
+    const atFirst = (turn: number) => -(a - turn * mid) / (2 * Math.PI);
+    // Trusted only from a line strong and steady enough, and only when it says more than its own spread:
+    // a faint line's phase is noise, and an offset within 3 standard errors of 0 is left to the loop.
+    const trusted = this.coherence >= 0.5 && this.lineStrength >= MIN_TIMING_LINE && Math.abs(b) > 3 * slopeError;
+    if (!trusted) return wrap(atFirst(this.coherence >= 0.5 && this.lineStrength >= MIN_TIMING_LINE ? b : 0));
+    const delta = -b / (Math.PI * ACQUISITION_SEGMENT);
     this.integ = -delta;
     this.acquiredPpm = delta * 1e6;
-    // The first segment's line sits at its centre: carry it back by the drift over half a segment.
-    return wrap(eps0 - (delta * ACQUISITION_SEGMENT) / 4);
+    // Carried back from the first segment's centre to its first sample by the drift over half a segment.
+    return wrap(atFirst(b) - (delta * ACQUISITION_SEGMENT) / 4);
   }
 
   private append(x: ComplexArray, y: ComplexArray): void {

@@ -394,13 +394,23 @@ function analyzeOnce(
 }
 
 /**
+ * Separation index below which an output is taken as not separated when no
+ * measured SNR says otherwise: what a perfectly equalized output has at an
+ * SNR of 7.1 dB. Without the reference found, nothing tells a correct output
+ * at a low SNR from a broken one (a wrong symbol rate, dispersion, …), and
+ * the equalizer is the likelier culprit.
+ */
+const UNMEASURED_SEPARATION = 0.7;
+
+/**
  * The equalizer's own verdict (singular taps; outputs that do not carry one
- * source each; outputs that are mostly noise), then, when the symbols were
- * measured, the separation index of each output against the one a
- * perfectly equalized output has at the SNR measured on that polarization,
- * (s/(1 + s))²: at least half of it is required, so that the test follows
- * the operating point (a correct output at 5 dB has σ ≈ 0.58) instead of a
- * fixed threshold.
+ * source each; outputs that are mostly noise), then the separation index of
+ * each output: when the symbols were measured, against the one a perfectly
+ * equalized output has at the SNR measured on that polarization,
+ * (s/(1 + s))², at least half of which is required, so that the test
+ * follows the operating point (a correct output at 5 dB has σ ≈ 0.58)
+ * instead of a fixed threshold; when they could not be measured, against
+ * {@link UNMEASURED_SEPARATION}.
  */
 function equalizerVerdict(chain: ReceiverChain, m: Measurement | null): AnalysisFailure | null {
   const d = chain.diagnostics().equalizer as {
@@ -431,7 +441,16 @@ function equalizerVerdict(chain: ReceiverChain, m: Measurement | null): Analysis
         `separation index x ${c.separationX.toFixed(3)}, y ${c.separationY.toFixed(3)} (at least ${c.threshold}) (${c.criterion})`,
     };
   }
-  if (m === null) return null;
+  if (m === null) {
+    if (c.separationX >= UNMEASURED_SEPARATION && c.separationY >= UNMEASURED_SEPARATION) return null;
+    return {
+      check: 'equalizer',
+      reason:
+        `the equalizer did not converge: separation index x ${c.separationX.toFixed(3)}, y ${c.separationY.toFixed(3)}, ` +
+        `below ${UNMEASURED_SEPARATION} (what a perfect output has at 7.1 dB), and the symbols could not be measured to show ` +
+        `a lower SNR (${c.criterion})`,
+    };
+  }
   for (const p of ['x', 'y'] as const) {
     const s = 10 ** (m.perPol[p].snrDb / 10);
     const expected = Number.isFinite(s) ? (s / (1 + s)) ** 2 : 1;
