@@ -224,6 +224,11 @@ export const stageCatalog: CatalogEntry[] = [
     input: () => skewedField(5000, 45),
   },
   {
+    name: 'gardner-clock-recovery (clock offset acquired over segments across blocks)',
+    make: () => gardnerClockRecovery({ acquisitionSamples: 6144, loopBandwidth: 5e-3 }),
+    input: () => skewedField(8000, 46),
+  },
+  {
     name: 'gardner-clock-recovery (square-timing start across blocks)',
     make: () => gardnerClockRecovery({ acquisitionSamples: 300, loopBandwidth: 5e-3 }),
     input: () => randomField('twoSps', 1200, 15),
