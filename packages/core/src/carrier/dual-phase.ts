@@ -1,4 +1,4 @@
-import type { Constellation } from '../modulation/constellation.js';
+import { type Constellation, nearestLevel } from '../modulation/constellation.js';
 import type { ComplexArray } from '../signal/complex.js';
 import type { PairPhaseKernel, PhaseKernel } from './phase-kernel.js';
 
@@ -166,17 +166,9 @@ export class JointPhaseTracker implements DualPhaseKernel {
 
   /** Im(z·d*)/|d|² for the nearest point d of z = zr + j·zi. */
   private phaseError(zr: number, zi: number): number {
-    const dr = this.level(zr);
-    const di = this.level(zi);
+    const dr = nearestLevel(zr, this.scale, this.top);
+    const di = nearestLevel(zi, this.scale, this.top);
     return (zi * dr - zr * di) / (dr * dr + di * di);
-  }
-
-  /** Nearest level of one axis: (2i − (L − 1))·scale, i = clamp(round((v/scale + L − 1)/2)). */
-  private level(v: number): number {
-    let i = Math.round((v / this.scale + this.top) * 0.5);
-    if (i < 0) i = 0;
-    else if (i > this.top) i = this.top;
-    return (2 * i - this.top) * this.scale;
   }
 }
 

@@ -1,5 +1,6 @@
+import { combineRails } from '../frontend/combine-channels.js';
 import { deskewChannels } from '../frontend/deskew-channels.js';
-import { channelsToField, estimateIqSkew, fieldToChannels, type IqSkewEstimate } from '../frontend/iq-skew.js';
+import { estimateIqSkew, fieldToChannels, type IqSkewEstimate } from '../frontend/iq-skew.js';
 import { type FieldBlock, fieldBlock } from '../pipeline/blocks.js';
 import { BlockError, OptionError, type Stage, type StageRecord } from '../pipeline/stage.js';
 import { type ComplexArray, concatComplex } from '../signal/complex.js';
@@ -205,7 +206,7 @@ class CompensateDispersion implements Stage<'twoSps', 'twoSps', CompensateDisper
       parts.push(this.releaseHeld());
     }
     const rest = this.deskew?.flush();
-    if (rest) parts.push(this.filter(channelsToField(rest), false));
+    if (rest) parts.push(this.filter(combineRails(rest), false));
     const x = this.ex!.flush();
     const y = this.ey!.flush();
     if (parts.length === 0) return fieldBlock('twoSps', x, y, this.sampleRate, 2);
@@ -313,7 +314,7 @@ class CompensateDispersion implements Stage<'twoSps', 'twoSps', CompensateDisper
     let { x, y } = f;
     if (deskew && this.deskew) {
       const block = fieldBlock('twoSps', x, y, this.sampleRate, 2);
-      ({ x, y } = channelsToField(this.deskew.process(fieldToChannels(block))));
+      ({ x, y } = combineRails(this.deskew.process(fieldToChannels(block))));
     }
     return fieldBlock('twoSps', this.ex!.process(x), this.ey!.process(y), this.sampleRate, 2);
   }

@@ -1,4 +1,4 @@
-import { type Constellation, constellation, type ModulationName } from '../modulation/constellation.js';
+import { type Constellation, constellation, type ModulationName, nearestLevel } from '../modulation/constellation.js';
 import type { UpdateRule } from './update-rule.js';
 
 /** Gains of the decision-directed carrier-phase loop of {@link ddLmsRule}. */
@@ -157,11 +157,7 @@ export class DdLmsRule implements UpdateRule {
 
   /** Nearest level on one axis of the square constellation. */
   private slice(v: number): number {
-    const top = this.levels - 1;
-    let i = Math.round((v / this.scale + top) * 0.5);
-    if (i < 0) i = 0;
-    else if (i > top) i = top;
-    return (2 * i - top) * this.scale;
+    return nearestLevel(v, this.scale, this.levels - 1);
   }
 }
 

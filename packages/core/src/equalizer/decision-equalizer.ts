@@ -1,5 +1,12 @@
-import { type Constellation, constellation, MODULATIONS, type ModulationName } from '../modulation/constellation.js';
+import {
+  type Constellation,
+  constellation,
+  MODULATIONS,
+  type ModulationName,
+  nearestLevel,
+} from '../modulation/constellation.js';
 import { type FieldBlock, fieldBlock } from '../pipeline/blocks.js';
+import { LeadingSpan } from '../pipeline/leading-span.js';
 import { BlockError, OptionError, type Stage, type StageRecord } from '../pipeline/stage.js';
 import { type ComplexArray, complexArray } from '../signal/complex.js';
 import { butterflyOutput, FILTER_XX, FILTER_XY, FILTER_YX, FILTER_YY, updateRow } from './butterfly-kernel.js';
@@ -86,7 +93,8 @@ class DecisionEqualizer implements Stage<'symbols', 'symbols', DecisionEqualizer
   private readonly errors = new Float64Array(2 * ERROR_WINDOW);
   private errorFill = 0;
   private errorPos = 0;
-  private held: { x: Float64Array; y: Float64Array; n: number } | null = null;
+  /** The start of the stream, held for the passes (null once they are done, or without passes). */
+  private span: LeadingSpan<FieldBlock<'symbols'>> | null = null;
   /** Input symbols whose windows are not complete yet, from input index `lineStart`. */
   private lineX = complexArray(0);
   private lineY = complexArray(0);
@@ -126,17 +134,17 @@ class DecisionEqualizer implements Stage<'symbols', 'symbols', DecisionEqualizer
     if (!Number.isNaN(this.sampleRate) && block.sampleRate !== this.sampleRate)
       throw new BlockError(`${NAME}: the symbol rate changed mid-stream from ${this.sampleRate} to ${block.sampleRate}`);
     this.sampleRate = block.sampleRate;
-    if (this.held !== null) {
-      this.hold(block.x, block.y);
-      if (this.held.n < this.startSymbols) return this.out(complexArray(0), complexArray(0));
-      return this.startFromHeld(false);
+    if (this.span !== null) {
+      const held = this.span.push(block);
+      return held === null ? this.out(complexArray(0), complexArray(0)) : this.startFromHeld(held, false);
     }
     return this.stream(block.x, block.y, false);
   }
 
   flush(): FieldBlock<'symbols'> | null {
     if (Number.isNaN(this.sampleRate)) return null;
-    if (this.held !== null) return this.startFromHeld(true);
+    const held = this.span?.finish() ?? null;
+    if (held !== null) return this.startFromHeld(held, true);
     return this.stream(complexArray(0), complexArray(0), true);
   }
 
@@ -144,7 +152,7 @@ class DecisionEqualizer implements Stage<'symbols', 'symbols', DecisionEqualizer
     this.taps.fill(0);
     this.taps[FILTER_XX * this.L + 2 * this.centre] = 1;
     this.taps[FILTER_YY * this.L + 2 * this.centre] = 1;
-    this.held = this.passes > 0 ? { x: new Float64Array(0), y: new Float64Array(0), n: 0 } : null;
+    this.span = this.passes > 0 ? new LeadingSpan(this.startSymbols) : null;
     this.lineX = complexArray(this.centre);
     this.lineY = complexArray(this.centre);
     this.lineStart = -this.centre;
@@ -190,36 +198,22 @@ class DecisionEqualizer implements Stage<'symbols', 'symbols', DecisionEqualizer
     return fieldBlock('symbols', x, y, this.sampleRate, 1);
   }
 
-  private hold(x: ComplexArray, y: ComplexArray): void {
-    const h = this.held as { x: Float64Array; y: Float64Array; n: number };
-    const need = h.n + (x.length >> 1);
-    if (2 * need > h.x.length) {
-      const size = Math.max(2 * need, 2 * h.x.length);
-      const nx = new Float64Array(size);
-      const ny = new Float64Array(size);
-      nx.set(h.x.subarray(0, 2 * h.n));
-      ny.set(h.y.subarray(0, 2 * h.n));
-      h.x = nx;
-      h.y = ny;
-    }
-    h.x.set(x, 2 * h.n);
-    h.y.set(y, 2 * h.n);
-    h.n = need;
-  }
-
   /** Adapts over the held start `passes` times, then streams everything held from its first symbol. */
-  private startFromHeld(final: boolean): FieldBlock<'symbols'> {
-    const h = this.held as { x: Float64Array; y: Float64Array; n: number };
-    this.held = null;
-    const n = Math.min(h.n, this.startSymbols);
+  private startFromHeld(
+    held: { all: FieldBlock<'symbols'>; calibration: FieldBlock<'symbols'> },
+    final: boolean,
+  ): FieldBlock<'symbols'> {
+    this.span = null;
+    const { x, y } = held.calibration;
+    const n = x.length >> 1;
     const c = this.centre;
     // The start with c zeros of history before it and c after it, as the stream sees its edges.
     const ux = new Float64Array(2 * (n + 2 * c));
     const uy = new Float64Array(2 * (n + 2 * c));
-    ux.set(h.x.subarray(0, 2 * n), 2 * c);
-    uy.set(h.y.subarray(0, 2 * n), 2 * c);
+    ux.set(x, 2 * c);
+    uy.set(y, 2 * c);
     for (let p = 0; p < this.passes; p++) this.run(ux, uy, 2 * c, n, null, null);
-    return this.stream(h.x.subarray(0, 2 * h.n) as ComplexArray, h.y.subarray(0, 2 * h.n) as ComplexArray, final);
+    return this.stream(held.all.x, held.all.y, final);
   }
 
   /** Filters (and adapts on) every symbol whose window is complete; `final` pads the end with zeros. */
@@ -268,10 +262,10 @@ class DecisionEqualizer implements Stage<'symbols', 'symbols', DecisionEqualizer
     for (let k = 0; k < count; k++) {
       const newest = newest0 + k;
       butterflyOutput(this.taps, this.L, ux, uy, newest, z);
-      const exr = level(z[0], scale, top) - z[0];
-      const exi = level(z[1], scale, top) - z[1];
-      const eyr = level(z[2], scale, top) - z[2];
-      const eyi = level(z[3], scale, top) - z[3];
+      const exr = nearestLevel(z[0], scale, top) - z[0];
+      const exi = nearestLevel(z[1], scale, top) - z[1];
+      const eyr = nearestLevel(z[2], scale, top) - z[2];
+      const eyi = nearestLevel(z[3], scale, top) - z[3];
       updateRow(this.taps, this.L, ux, uy, newest, 0, exr, exi, this.mu);
       updateRow(this.taps, this.L, ux, uy, newest, 1, eyr, eyi, this.mu);
       if (outX !== null && outY !== null) {
@@ -287,12 +281,4 @@ class DecisionEqualizer implements Stage<'symbols', 'symbols', DecisionEqualizer
       }
     }
   }
-}
-
-/** Nearest level of one axis of square QAM: (2i − (L − 1))·scale, i = clamp(round((v/scale + L − 1)/2)). */
-function level(v: number, scale: number, top: number): number {
-  let i = Math.round((v / scale + top) * 0.5);
-  if (i < 0) i = 0;
-  else if (i > top) i = top;
-  return (2 * i - top) * scale;
 }

@@ -1,11 +1,30 @@
 import { type ChannelBlock, type FieldBlock, fieldBlock } from '../pipeline/blocks.js';
 import { BlockError, type Stage, type StageRecord } from '../pipeline/stage.js';
 import { complexArray } from '../signal/complex.js';
+import type { DualPol } from '../signal/dual-pol.js';
 
 /** What {@link combineChannels} reports. */
 export interface CombineDiagnostics {
   /** Samples combined so far, per polarization. */
   readonly samples: number;
+}
+
+/**
+ * The four real channels as the complex pair x = xi + j·xq, y = yi + j·yq,
+ * sample for sample (the channels of equal length).
+ * @example const { x, y } = combineRails({ xi, xq, yi, yq });
+ */
+export function combineRails(c: Pick<ChannelBlock, 'xi' | 'xq' | 'yi' | 'yq'>): DualPol {
+  const n = c.xi.length;
+  const x = complexArray(n);
+  const y = complexArray(n);
+  for (let k = 0; k < n; k++) {
+    x[2 * k] = c.xi[k];
+    x[2 * k + 1] = c.xq[k];
+    y[2 * k] = c.yi[k];
+    y[2 * k + 1] = c.yq[k];
+  }
+  return { x, y };
 }
 
 /**
@@ -32,14 +51,7 @@ class CombineChannels implements Stage<'channels', 'field', CombineDiagnostics> 
         `${this.name}: channel lengths differ (xi ${n}, xq ${block.xq.length}, yi ${block.yi.length}, yq ${block.yq.length})`,
       );
     }
-    const x = complexArray(n);
-    const y = complexArray(n);
-    for (let k = 0; k < n; k++) {
-      x[2 * k] = block.xi[k];
-      x[2 * k + 1] = block.xq[k];
-      y[2 * k] = block.yi[k];
-      y[2 * k + 1] = block.yq[k];
-    }
+    const { x, y } = combineRails(block);
     this.samples += n;
     return fieldBlock('field', x, y, block.sampleRate, block.samplesPerSymbol);
   }

@@ -86,20 +86,3 @@ export function fieldToChannels(block: FieldBlock<'twoSps'>): ChannelBlock {
   }
   return { domain: 'channels', xi, xq, yi, yq, sampleRate: block.sampleRate, samplesPerSymbol: block.samplesPerSymbol };
 }
-
-/**
- * Scope channels back into a field of the same rate (the inverse of {@link fieldToChannels}).
- * @example const { x, y } = channelsToField(deskew.process(fieldToChannels(block)));
- */
-export function channelsToField(block: ChannelBlock): DualPol {
-  const n = block.xi.length;
-  const x = complexArray(n);
-  const y = complexArray(n);
-  for (let k = 0; k < n; k++) {
-    x[2 * k] = block.xi[k];
-    x[2 * k + 1] = block.xq[k];
-    y[2 * k] = block.yi[k];
-    y[2 * k + 1] = block.yq[k];
-  }
-  return { x, y };
-}

@@ -146,6 +146,19 @@ function failNaN(k: number): never {
 }
 
 /**
+ * The nearest level of one axis of square QAM: (2i − (L − 1))·scale with
+ * i = round((v/scale + L − 1)/2) clamped to 0 … L − 1 (the per-axis
+ * decision; `top` = L − 1).
+ * @example nearestLevel(0.5, constellation('16qam').scale, 3) // 0.316…: the level 1·scale
+ */
+export function nearestLevel(v: number, scale: number, top: number): number {
+  let i = Math.round((v / scale + top) * 0.5);
+  if (i < 0) i = 0;
+  else if (i > top) i = top;
+  return (2 * i - top) * scale;
+}
+
+/**
  * Maps bits to symbols: `bitsPerSymbol` consecutive bits (MSB first) per symbol.
  * @param bits N·log2 M bits, each 0 or 1
  * @returns N complex symbols
