@@ -137,9 +137,9 @@ export function sinc(x: number): number {
 }
 
 /**
- * Complex dot product of `count` real coefficients with interleaved complex
+ * Complex dot product of `count` real coefficients (from `c[cOffset]` on) with interleaved complex
  * samples starting at complex index `start` of `buf`; the result goes to
- * `out[2·at]`, `out[2·at + 1]`:  out = Σⱼ c[j]·buf[start + j].
+ * `out[2·at]`, `out[2·at + 1]`:  out = Σⱼ c[cOffset + j]·buf[start + j].
  */
 export function dotComplex(
   buf: Float64Array,
@@ -148,11 +148,12 @@ export function dotComplex(
   count: number,
   out: Float64Array,
   at: number,
+  cOffset = 0,
 ): void {
   let re = 0;
   let im = 0;
   let b = 2 * start;
-  for (let j = 0; j < count; j++, b += 2) {
+  for (let j = cOffset, end = cOffset + count; j < end; j++, b += 2) {
     re += c[j] * buf[b];
     im += c[j] * buf[b + 1];
   }

@@ -36,7 +36,7 @@ function noisy(modulation: 'qpsk' | '16qam' | '64qam', n: number, snrDb: number,
 }
 
 describe('informationEstimate', () => {
-  it('computes the GMI and MI formulas of Alvarado et al. (JLT 2018) exactly', () => {
+  it('computes the GMI and MI formulas of Alvarado et al. (JLT 2018) within 1e-6 bit', () => {
     for (const [modulation, snrDb] of [
       ['qpsk', 3],
       ['16qam', 10],
@@ -46,9 +46,10 @@ describe('informationEstimate', () => {
       const s2 = fittedNoiseVariance(z, a);
       const got = informationEstimate(c, z, labels, s2);
       const want = naive(c, z, labels, s2);
-      // Same sums in another order: rounding only.
-      expect(Math.abs(got.gmi - want.gmi)).toBeLessThan(1e-10);
-      expect(Math.abs(got.mi - want.mi)).toBeLessThan(1e-10);
+      // The per-axis losses come from a table with cubic interpolation, stated within 4e-7 bit of
+      // the exact sums (see AxisTable); the estimate's own spread over 2,000 symbols is ~0.01 bit.
+      expect(Math.abs(got.gmi - want.gmi)).toBeLessThan(1e-6);
+      expect(Math.abs(got.mi - want.mi)).toBeLessThan(1e-6);
     }
   });
 
