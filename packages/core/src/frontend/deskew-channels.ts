@@ -139,7 +139,10 @@ class DeskewChannels implements Stage<'channels', 'channels', DeskewChannelsDiag
     const n = inputs[0].length;
     const skip = Math.min(this.toSkip, n);
     this.toSkip -= skip;
-    const outs = inputs.map((v, c) => this.filterOne(c, v).subarray(skip));
+    // A channel without skew is a pure delay of S samples, which the skip undoes: only its samples move.
+    const outs = inputs.map((v, c) =>
+      (this.skew[CHANNEL_NAMES[c]] === 0 ? this.delayOne(c, v) : this.filterOne(c, v)).subarray(skip),
+    );
     if (outs[0].length === 0 && n === 0) return emptyBlock('channels', this.sampleRate, this.sps);
     return {
       domain: 'channels',
@@ -150,6 +153,18 @@ class DeskewChannels implements Stage<'channels', 'channels', DeskewChannelsDiag
       sampleRate: this.sampleRate,
       samplesPerSymbol: this.sps,
     };
+  }
+
+  /** The channel delayed by S samples (its filter is a unit impulse at S): history ‖ input, shifted. */
+  private delayOne(c: number, input: Float64Array): Float64Array {
+    const S = (this.L - 1) / 2;
+    const hist = this.hist[c];
+    const u = new Float64Array(hist.length + input.length);
+    u.set(hist, 0);
+    u.set(input, hist.length);
+    this.hist[c] = u.slice(u.length - (this.L - 1));
+    // z[m] = u[m + L − 1 − S]
+    return u.subarray(this.L - 1 - S, this.L - 1 - S + input.length);
   }
 
   // z[m] = Σₖ h[k]·u[m + L − 1 − k], u = history ‖ input

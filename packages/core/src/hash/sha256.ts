@@ -40,11 +40,7 @@ export class Sha256 {
    * that the same samples give the same digest everywhere.
    */
   updateFloat64(values: Float64Array): this {
-    if (LITTLE_ENDIAN) return this.update(new Uint8Array(values.buffer, values.byteOffset, values.byteLength));
-    const bytes = new Uint8Array(values.length * 8);
-    const view = new DataView(bytes.buffer);
-    for (let k = 0; k < values.length; k++) view.setFloat64(8 * k, values[k], true);
-    return this.update(bytes);
+    return this.update(littleEndianBytes(values));
   }
 
   /** The digest as 64 lower-case hex digits; the hasher is then closed. */
@@ -118,6 +114,19 @@ export class Sha256 {
 }
 
 const LITTLE_ENDIAN = new Uint8Array(Uint16Array.of(1).buffer)[0] === 1;
+
+/**
+ * The values' IEEE-754 bytes, little-endian whatever the platform (a view of
+ * the same memory on a little-endian one): what fingerprints hash.
+ * @example new Sha256().update(littleEndianBytes(samples)).hex()
+ */
+export function littleEndianBytes(values: Float64Array): Uint8Array {
+  if (LITTLE_ENDIAN) return new Uint8Array(values.buffer, values.byteOffset, values.byteLength);
+  const bytes = new Uint8Array(values.length * 8);
+  const view = new DataView(bytes.buffer);
+  for (let k = 0; k < values.length; k++) view.setFloat64(8 * k, values[k], true);
+  return bytes;
+}
 
 function rotr(x: number, n: number): number {
   return (x >>> n) | (x << (32 - n));

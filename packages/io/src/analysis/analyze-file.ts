@@ -1,6 +1,13 @@
+import { createHash } from 'node:crypto';
 import { readFileSync } from 'node:fs';
 import type { ReceiverSettings } from '@intradyne/core';
-import { type AnalysisResult, type AnalyzeOptions, analyzeCapture, type QualityFigures } from '@intradyne/metrics';
+import {
+  type AnalysisResult,
+  type AnalyzeOptions,
+  analyzeCapture,
+  type InputHasher,
+  type QualityFigures,
+} from '@intradyne/metrics';
 import { type CaptureDescription, openCapture } from '../capture/capture.js';
 import { InputError } from '../errors/input-error.js';
 
@@ -54,8 +61,17 @@ export function analyzeOpenCapture(capture: CaptureDescription, settings: Analys
   };
   // Read from the file again on each iteration: a data-aided analysis passes over the capture twice.
   const blocks = { [Symbol.iterator]: () => capture.blocks({ blockSize: settings.blockSize }) };
-  const result = analyzeCapture(blocks, receiver, capture.reference, settings.analysis);
+  const result = analyzeCapture(blocks, receiver, capture.reference, { inputHasher: nativeSha256, ...settings.analysis });
   return { capture, result };
+}
+
+/** Node's SHA-256 (the same digest as core's, several times faster over the samples). */
+function nativeSha256(): InputHasher {
+  const h = createHash('sha256');
+  return {
+    update: (bytes) => h.update(bytes),
+    hex: () => h.digest('hex'),
+  };
 }
 
 /**

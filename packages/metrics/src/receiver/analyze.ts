@@ -10,6 +10,7 @@ import {
   defaultReceiver,
   type FieldBlock,
   LIBRARY_VERSION,
+  littleEndianBytes,
   OptionError,
   type ReceiverChain,
   type ReceiverDiagnostics,
@@ -54,6 +55,12 @@ export interface AnalyzeOptions {
   /** Gather the data of the report's pictures in bounded memory (default false): see {@link PlotData}. */
   readonly plotData?: boolean;
   /**
+   * The SHA-256 hasher of the input samples (default core's {@link Sha256}):
+   * a caller with a native one (Node's crypto, WebCrypto in a worker) passes
+   * a factory of it; the digest must be the same.
+   */
+  readonly inputHasher?: () => InputHasher;
+  /**
    * How the 2×2 equalizer adapts: 'blind' (the default: CMA and RDE, as a
    * receiver in the field must) or 'data-aided': a blind pass first finds
    * which transmitted symbol each output carries, then the capture runs
@@ -64,6 +71,14 @@ export interface AnalyzeOptions {
    * over on each iteration), and costs two passes.
    */
   readonly equalizerTraining?: EqualizerTrainingMode;
+}
+
+/** What {@link AnalyzeOptions.inputHasher} makes: an incremental SHA-256. */
+export interface InputHasher {
+  /** Adds bytes to the message. */
+  update(bytes: Uint8Array): unknown;
+  /** The digest as 64 lower-case hex digits. */
+  hex(): string;
 }
 
 /** How the equalizer of an analysis was adapted (see {@link AnalyzeOptions.equalizerTraining}). */
@@ -265,7 +280,7 @@ function analyzeOnce(
   if (!Number.isInteger(fitSymbols) || fitSymbols < 1)
     throw new OptionError('analyze', 'fitSymbols', 'an integer ≥ 1', fitSymbols);
   const chain = defaultReceiver(settings);
-  const hasher = new Sha256();
+  const hasher: InputHasher = options.inputHasher?.() ?? new Sha256();
   const kept = options.keepSymbols ? new SymbolCollector() : null;
   const density = options.plotData
     ? new ConstellationDensity(settings.modulation, { skipLeading: skipSymbols, skipTrailing: skipTail })
@@ -499,8 +514,8 @@ function numberField(d: unknown, key: string): number {
   return typeof v === 'number' ? v : Number.NaN;
 }
 
-/** Hashes a block as rows (xi, xq, yi, yq), so that the digest does not depend on block boundaries. */
-function hashRows(h: Sha256, b: ChannelBlock): void {
+/** Hashes a block as rows (xi, xq, yi, yq) of little-endian float64, so that the digest does not depend on block boundaries. */
+function hashRows(h: InputHasher, b: ChannelBlock): void {
   const n = b.xi.length;
   const rows = new Float64Array(4 * n);
   for (let k = 0; k < n; k++) {
@@ -509,7 +524,7 @@ function hashRows(h: Sha256, b: ChannelBlock): void {
     rows[4 * k + 2] = b.yi[k];
     rows[4 * k + 3] = b.yq[k];
   }
-  h.updateFloat64(rows);
+  h.update(littleEndianBytes(rows));
 }
 
 /** Delays a symbol stream by `hold` symbols: what is pushed comes out once `hold` later symbols have arrived. */

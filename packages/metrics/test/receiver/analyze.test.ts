@@ -1,3 +1,4 @@
+import { createHash } from 'node:crypto';
 import { type ChannelBlock, type SimulatedCapture, type SimulationOptions, simulate, sliceBlock } from '@intradyne/core';
 import { describe, expect, it } from 'vitest';
 import { type AnalysisResult, analyzeCapture, snrForBer } from '../../src/index.js';
@@ -182,6 +183,14 @@ describe('default receiver: explicit failures and streaming', () => {
       expect(r.freqOffsetHz).toBe(one.freqOffsetHz);
       expect(r.record.inputSha256).toBe(one.record.inputSha256);
     }
+    // A native hasher (Node's crypto, an independent SHA-256) gives the same digest of the same rows.
+    const native = analyzeCapture(split(7), settings, cap.reference, {
+      inputHasher: () => {
+        const h = createHash('sha256');
+        return { update: (b: Uint8Array) => h.update(b), hex: () => h.digest('hex') };
+      },
+    });
+    expect(native.record.inputSha256).toBe(one.record.inputSha256);
     expect(one.record.version).toMatch(/^\d+\.\d+\.\d+$/);
     expect(one.record.inputSha256).toMatch(/^[0-9a-f]{64}$/);
     expect(one.record.samples).toBe(n);
