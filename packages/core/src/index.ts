@@ -29,7 +29,7 @@ export {
   type FrequencyOffsetOptions,
   frequencyOffsetRecovery,
 } from './carrier/frequency-offset-stage.js';
-export { removeFrequencyOffset } from './carrier/frequency-removal.js';
+export { PHASOR_ANCHOR, removeFrequencyOffset } from './carrier/frequency-removal.js';
 export { estimateLinewidth, LinewidthAccumulator, type LinewidthOptions } from './carrier/linewidth.js';
 export { type PairPhaseKernel, type PhaseKernel, runKernel } from './carrier/phase-kernel.js';
 export {
