@@ -1,7 +1,9 @@
-import { readFileSync, statSync } from 'node:fs';
+import { statSync } from 'node:fs';
 import { dirname, join, relative, resolve, sep } from 'node:path';
 import { listCaptures } from '../capture/capture.js';
+import { inputFailure } from '../errors/file-system.js';
 import { InputError } from '../errors/input-error.js';
+import { readInputText } from '../load/open-file.js';
 
 /** One capture of a sweep. */
 export interface SweepCapture {
@@ -39,8 +41,8 @@ export function sweepInputs(input: string): SweepInputs {
   let isFolder: boolean;
   try {
     isFolder = statSync(input).isDirectory();
-  } catch {
-    throw new InputError({ file: input }, 'sweep input', 'a folder of captures or a manifest file', 'no such file or folder');
+  } catch (e) {
+    throw inputFailure(e, input, 'sweep input', 'a folder of captures or a manifest file');
   }
   if (isFolder) {
     const found = listCaptures(input);
@@ -64,7 +66,7 @@ export function sweepInputs(input: string): SweepInputs {
  */
 export function readManifest(path: string): SweepCapture[] {
   const root = dirname(path);
-  const lines = readFileSync(path, 'utf8').split(/\r?\n/);
+  const lines = readInputText(path, 'manifest').split(/\r?\n/);
   const seen = new Map<string, number>();
   const captures: SweepCapture[] = [];
   for (const [i, raw] of lines.entries()) {
