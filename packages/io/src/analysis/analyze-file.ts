@@ -46,8 +46,8 @@ export function analyzeFile(path: string, settings: AnalysisSettings = {}): File
  * rather than returned as a failed analysis: a capture too short to measure
  * with the default lead-in (the data file named, with its length; with
  * `analysis.skipSymbols` set, the failure stays the analysis's), and a stated symbol rate that
- * the data do not carry — checked only after the equalizer failed to
- * converge or the symbols did not fit the modulation, by estimating the
+ * the data do not carry — checked only after the analysis failed (any check
+ * but the reference's, which a wrong rate does not explain), by estimating the
  * symbol rate from the spectrum of the first {@link RATE_CHECK_SAMPLES}
  * samples; more than {@link RATE_MISMATCH} away from the stated one, the
  * descriptor's field (or the option) is named with both rates.
@@ -72,19 +72,23 @@ export function analyzeOpenCapture(capture: CaptureDescription, settings: Analys
     capture.reference,
     settings.analysis,
   );
-  // Too short for the default lead-in: the capture is at fault. (With a lead-in chosen by the caller, the
-  // analysis failed for that choice, and says so.)
-  if (!result.ok && result.failure?.check === 'length' && settings.analysis?.skipSymbols === undefined) {
+  // The rates first: a wrong symbol rate also makes a capture look short in symbols.
+  if (!result.ok && result.failure?.check !== 'reference') checkRatesFit(capture, result.failure?.reason ?? '');
+  // Too short for the default lead-in: the capture is at fault, whichever check noticed it first (ten samples
+  // make the equalizer fail before the length is checked). With a lead-in chosen by the caller, the analysis
+  // failed for that choice, and says so.
+  if (!result.ok && settings.analysis?.skipSymbols === undefined) {
     const samples = result.record.samples;
-    throw new InputError(
-      { file: capture.dataPath },
-      'data',
-      `a capture long enough to measure (${result.failure.reason})`,
-      `${samples} samples (${Math.floor(samples / capture.samplesPerSymbol)} symbols at ${capture.samplesPerSymbol} samples per symbol)`,
-    );
+    const symbols = Math.floor(samples / capture.samplesPerSymbol);
+    const { skipSymbols, skipTailSymbols } = result.record.analysis;
+    if (result.failure?.check === 'length' || symbols <= skipSymbols + skipTailSymbols)
+      throw new InputError(
+        { file: capture.dataPath },
+        'data',
+        `a capture long enough to measure (more than ${skipSymbols + skipTailSymbols} symbols: ${skipSymbols} leading ones are left out while the receiver settles, ${skipTailSymbols} trailing)`,
+        `${samples} samples (${symbols} symbols at ${capture.samplesPerSymbol} samples per symbol)`,
+      );
   }
-  if (!result.ok && (result.failure?.check === 'equalizer' || result.failure?.check === 'modulation'))
-    checkRatesFit(capture, result.failure.reason);
   return { capture, result };
 }
 
@@ -113,7 +117,7 @@ function checkRatesFit(capture: CaptureDescription, failure: string): void {
   if (seen === null || Math.abs(seen / capture.symbolRate - 1) <= RATE_MISMATCH) return;
   const expected =
     `a symbol rate the data carry (the analysis failed: ${failure.split(':')[0]}; at the stated ${capture.sampleRate} Sa/s ` +
-    `the spectrum of the data shows about ${Number((seen / 1e9).toPrecision(3))} GBd: check the symbol rate and the sample rate)`;
+    `the spectrum of the data shows about ${(seen / 1e9).toPrecision(3)} GBd: check the symbol rate and the sample rate)`;
   const origin = capture.origin('symbolRate');
   if ('option' in origin) throw new UsageError(`${origin.option}: expected ${expected}, received ${capture.symbolRate}`);
   throw new InputError(origin, "field 'symbolRate'", expected, String(capture.symbolRate));

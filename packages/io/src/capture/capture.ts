@@ -120,7 +120,12 @@ export function resolveDataPath(path: string): string {
       `a '${ext}' file`,
     );
   }
-  if (!existsSync(path)) throw new InputError({ file: path }, 'capture', 'an existing file', 'no such file');
+  try {
+    statSync(path);
+  } catch (e) {
+    // Missing, a broken link, a loop of links, a path through a file: the system says which.
+    throw inputFailure(e, path, 'capture', 'an existing file');
+  }
   return path;
 }
 

@@ -235,7 +235,10 @@ export function validateDescriptor(
     const problem = rateProblem(sampleRate, symbolRate);
     // A relation between two fields: blame the symbol rate only when it alone came from the command line.
     if (problem !== null && fields.get('sampleRate')?.option === undefined && fields.get('symbolRate')?.option !== undefined)
-      fail('symbolRate', `a symbol rate the sample rate of ${file} (${sampleRate} Sa/s) fits: a sample rate ${problem}`);
+      fail(
+        'symbolRate',
+        `a symbol rate the sample rate of ${file} (${sampleRate} Sa/s) can carry: the sample rate must be ${problem}`,
+      );
     if (problem !== null) fail('sampleRate', problem);
   }
   return {

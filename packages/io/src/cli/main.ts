@@ -97,6 +97,12 @@ export function main(
 // An installed bin is a symlink (node_modules/.bin/intradyne): compare its target.
 const invoked = process.argv[1] ? new URL(`file://${realPath(process.argv[1])}`).pathname : '';
 if (invoked && import.meta.url.endsWith(invoked.replace(/^.*\/dist\//, '/dist/'))) {
+  // A reader that stops early (\`intradyne … | head\`) closes the pipe: nothing more to say, and no stack trace.
+  for (const stream of [process.stdout, process.stderr])
+    stream.on('error', (e: NodeJS.ErrnoException) => {
+      if (e.code === 'EPIPE') process.exit(process.exitCode ?? 0);
+      throw e;
+    });
   const code = main(process.argv.slice(2));
   if (typeof code === 'number') process.exitCode = code;
   else

@@ -12,6 +12,7 @@ const REASONS: Readonly<Record<string, string>> = {
   ENOENT: 'no such file or folder',
   ENOTDIR: 'a path through something that is not a folder',
   EISDIR: 'a folder',
+  ERR_FS_EISDIR: 'a folder',
   EEXIST: 'an existing file',
   ENOTEMPTY: 'a folder that is not empty',
   ENOSPC: 'no space left on the device',

@@ -100,6 +100,35 @@ export const MAX_TEXT_BYTES = 1 << 30;
 const utf8 = new TextDecoder('utf-8', { fatal: true });
 
 /**
+ * Reads a whole input file's bytes: a regular file only (see
+ * {@link openInput}), at most {@link MAX_TEXT_BYTES}.
+ * @param what what the file is read as, for messages
+ * @throws InputError naming the file: unreadable, not a regular file, or too large
+ * @example const bytes = readInputBytes('lab-sweep/journal.jsonl', 'sweep journal');
+ */
+export function readInputBytes(path: string, what = 'file'): Uint8Array {
+  const fd = openInput(path, what);
+  try {
+    const size = fstatSync(fd).size;
+    if (size > MAX_TEXT_BYTES)
+      throw new InputError({ file: path }, what, `a file of at most ${MAX_TEXT_BYTES} bytes`, `${size} bytes`);
+    const bytes = new Uint8Array(size);
+    let at = 0;
+    // The size can change while reading (a file being written): read until the end, within the bound.
+    while (at < bytes.length) {
+      const n = readInput(fd, path, what, bytes, at, bytes.length - at, null);
+      if (n === 0) break;
+      at += n;
+    }
+    return bytes.subarray(0, at);
+  } catch (e) {
+    throw withLinkTarget(e, path, linkTarget(path));
+  } finally {
+    closeSync(fd);
+  }
+}
+
+/**
  * Reads a whole UTF-8 text file: a regular file only (see {@link openInput}),
  * a UTF-8 byte-order mark skipped, and any other encoding or binary content
  * named in the error instead of decoded.
@@ -109,25 +138,11 @@ const utf8 = new TextDecoder('utf-8', { fatal: true });
  * @example const text = readInputText('lab/run-07.json', 'descriptor');
  */
 export function readInputText(path: string, what = 'file'): string {
-  const fd = openInput(path, what);
+  const bytes = readInputBytes(path, what);
   try {
-    const size = fstatSync(fd).size;
-    if (size > MAX_TEXT_BYTES)
-      throw new InputError({ file: path }, what, `a text file of at most ${MAX_TEXT_BYTES} bytes`, `${size} bytes`);
-    const bytes = new Uint8Array(size);
-    let at = 0;
-    for (;;) {
-      // The size can change while reading (a file being written): read until the end, within the bound.
-      if (at === bytes.length) break;
-      const n = readInput(fd, path, what, bytes, at, bytes.length - at, null);
-      if (n === 0) break;
-      at += n;
-    }
-    return decodeText(bytes.subarray(0, at), path, what);
+    return decodeText(bytes, path, what);
   } catch (e) {
     throw withLinkTarget(e, path, linkTarget(path));
-  } finally {
-    closeSync(fd);
   }
 }
 

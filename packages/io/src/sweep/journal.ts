@@ -1,7 +1,7 @@
 import { appendFileSync, existsSync } from 'node:fs';
 import { dirname, join } from 'node:path';
 import { outputFailure } from '../errors/file-system.js';
-import { readInputText } from '../load/open-file.js';
+import { readInputBytes } from '../load/open-file.js';
 import { writeFileAtomic } from '../write/atomic.js';
 import { rowProblem, type SweepRow } from './result-row.js';
 
@@ -46,6 +46,7 @@ export interface JournalReading {
 }
 
 const SHA256 = /^[0-9a-f]{64}$/;
+const lenient = new TextDecoder('utf-8', { fatal: false });
 const ENTRY_KEYS = ['capture', 'inputSha256', 'settingsSha256', 'row'];
 
 /**
@@ -83,7 +84,9 @@ export function entryProblem(value: unknown): string | null {
  */
 export function inspectJournal(path: string): JournalReading {
   if (!existsSync(path)) return { entries: [], setAside: [], untidy: false };
-  const text = readInputText(path, 'sweep journal');
+  // Decoded leniently: a line damaged into bytes that are not UTF-8 (or the zeros a crash can leave at
+  // the end of a file) is one line to set aside, not a journal to refuse.
+  const text = lenient.decode(readInputBytes(path, 'sweep journal'));
   const lines = text.split('\n');
   // The piece after the last newline: empty for a journal whose last line is complete.
   const tail = lines.pop() ?? '';
@@ -97,6 +100,7 @@ export function inspectJournal(path: string): JournalReading {
     try {
       value = JSON.parse(line);
     } catch {
+      if (line.replaceAll('\u0000', '').trim() === '' && !torn) return; // zeros left by a crash: nothing was there
       const problem = torn ? 'an incomplete last line (a run stopped while writing it)' : 'not a JSON line';
       setAside.push({ line: i + 1, text: line, problem, capture: null });
       return;
@@ -134,9 +138,18 @@ export function tidyJournal(path: string, reading: JournalReading): string[] {
   if (!reading.untidy) return [];
   if (reading.setAside.length > 0) {
     const asidePath = join(dirname(path), SET_ASIDE_FILE);
-    const before = existsSync(asidePath) ? readInputText(asidePath, 'set-aside journal lines') : '';
+    // What was set aside before is kept byte for byte, whatever it holds.
+    const before = existsSync(asidePath) ? readInputBytes(asidePath, 'set-aside journal lines') : new Uint8Array(0);
     const added = reading.setAside.map((l) => `${l.text}\n`).join('');
-    writeFileAtomic(asidePath, (append) => append(before + added), { overwrite: true }, 'set-aside journal lines');
+    writeFileAtomic(
+      asidePath,
+      (append) => {
+        append(before);
+        append(added);
+      },
+      { overwrite: true },
+      'set-aside journal lines',
+    );
   }
   const kept = reading.entries.map((e) => `${JSON.stringify(e)}\n`).join('');
   writeFileAtomic(path, (append) => append(kept), { overwrite: true }, 'sweep journal');

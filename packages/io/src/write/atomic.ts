@@ -107,6 +107,7 @@ export function checkOutputFolder(dir: string, what = 'output folder'): void {
  * @example prepareOutputFolder('lab-sweep');
  */
 export function prepareOutputFolder(dir: string, what = 'output folder'): void {
+  checkOutputFolder(dir, what);
   try {
     mkdirSync(dir, { recursive: true });
   } catch (e) {
