@@ -111,7 +111,7 @@ export function prepareOutputFolder(dir: string, what = 'output folder'): void {
   try {
     mkdirSync(dir, { recursive: true });
   } catch (e) {
-    throw outputFailure(e, dir, what, 'a folder (created when missing)');
+    throw outputFailure(mkdirReason(dir, e), dir, what, 'a folder (created when missing)');
   }
   let stats: Stats;
   try {
@@ -120,6 +120,24 @@ export function prepareOutputFolder(dir: string, what = 'output folder'): void {
     throw outputFailure(e, dir, what, 'a folder (created when missing)');
   }
   if (!stats.isDirectory()) throw new OutputError(dir, what, 'a folder', kindOf(stats));
+}
+
+/**
+ * The true reason a recursive mkdir failed: Node reports ENOENT for every
+ * failure of its recursive form (a read-only file system, no permission),
+ * so the first missing folder is made again alone, which fails with the
+ * system's own reason.
+ */
+function mkdirReason(dir: string, e: unknown): unknown {
+  if (!(isSystemError(e) && e.code === 'ENOENT')) return e;
+  let missing = dir;
+  while (dirname(missing) !== missing && !existsSync(dirname(missing))) missing = dirname(missing);
+  try {
+    mkdirSync(missing);
+  } catch (plain) {
+    return plain;
+  }
+  return e;
 }
 
 /**
