@@ -1,6 +1,7 @@
 import type { ReceiverSettings } from '@intradyne/core';
 import { type AnalysisResult, type AnalyzeOptions, analyzeCapture, type QualityFigures } from '@intradyne/metrics';
 import { type CaptureDescription, openCapture } from '../capture/capture.js';
+import { parseJsonFile } from '../capture/json-positions.js';
 import { InputError } from '../errors/input-error.js';
 import { UsageError } from '../errors/usage-error.js';
 import { readInputText } from '../load/open-file.js';
@@ -130,13 +131,7 @@ function checkRatesFit(capture: CaptureDescription, failure: string): void {
  * @throws InputError naming the file for unreadable JSON or other keys
  */
 export function readPipelineFile(path: string): Pick<AnalysisSettings, 'receiver' | 'analysis'> {
-  const text = readInputText(path, 'pipeline');
-  let doc: unknown;
-  try {
-    doc = JSON.parse(text);
-  } catch (e) {
-    throw new InputError({ file: path }, 'pipeline', 'a JSON file', (e as Error).message);
-  }
+  const doc = parseJsonFile(readInputText(path, 'pipeline'), path);
   if (typeof doc !== 'object' || doc === null || Array.isArray(doc))
     throw new InputError({ file: path }, 'pipeline', 'a JSON object', typeof doc);
   for (const k of Object.keys(doc)) {

@@ -1,5 +1,6 @@
 import { existsSync } from 'node:fs';
 import { OptionError } from '@intradyne/core';
+import { parseJsonFile } from '../capture/json-positions.js';
 import { LIMITS } from '../capture/limits.js';
 import { readInputText } from '../load/open-file.js';
 import { runScenario } from '../scenarios/run.js';
@@ -34,13 +35,7 @@ export function loadScenario(spec: string): Scenario {
       `intradyne simulate: '${spec}' is neither a built-in scenario (${BUILT_IN_SCENARIOS.map((s) => s.name).join(', ')}) nor a file`,
     );
   }
-  const text = readInputText(spec, 'scenario');
-  let doc: unknown;
-  try {
-    doc = JSON.parse(text);
-  } catch (e) {
-    throw new UsageError(`${spec}: not valid JSON (${(e as Error).message})`);
-  }
+  const doc = parseJsonFile(readInputText(spec, 'scenario'), spec);
   const s = doc as Partial<Scenario>;
   if (typeof s !== 'object' || s === null || typeof s.name !== 'string')
     throw new UsageError(`${spec}: expected an object with a string 'name'`);

@@ -1,3 +1,4 @@
+import { createHash } from 'node:crypto';
 import { appendFileSync, existsSync } from 'node:fs';
 import { dirname, join } from 'node:path';
 import { outputFailure } from '../errors/file-system.js';
@@ -15,6 +16,12 @@ export interface JournalEntry {
   readonly settingsSha256: string;
   /** The result row. */
   readonly row: SweepRow;
+  /**
+   * SHA-256 (hex) of the row as written (`JSON.stringify(row)`): a row
+   * edited by hand or damaged into other plausible numbers no longer
+   * matches, and is set aside instead of reaching the table.
+   */
+  readonly rowSha256: string;
 }
 
 /** The journal's file name inside the output folder. */
@@ -47,13 +54,17 @@ export interface JournalReading {
 
 const SHA256 = /^[0-9a-f]{64}$/;
 const lenient = new TextDecoder('utf-8', { fatal: false });
-const ENTRY_KEYS = ['capture', 'inputSha256', 'settingsSha256', 'row'];
+const ENTRY_KEYS = ['capture', 'inputSha256', 'settingsSha256', 'row', 'rowSha256'];
+
+/** The fingerprint of a row as the journal stores it. */
+const rowFingerprint = (row: unknown) => createHash('sha256').update(JSON.stringify(row)).digest('hex');
 
 /**
  * What is wrong with a parsed journal line, in words, or null for a valid
  * entry: an object with exactly the keys of {@link JournalEntry}, a
- * capture key, two SHA-256 fingerprints in hex, and a row that passes
- * `rowProblem` and names the same capture and input hash.
+ * capture key, SHA-256 fingerprints in hex, and a row that passes
+ * `rowProblem`, names the same capture and input hash, and matches its
+ * fingerprint `rowSha256`.
  * @example entryProblem({ capture: 'a.csv' }) // "key 'inputSha256': expected a SHA-256 in hex, received nothing"
  */
 export function entryProblem(value: unknown): string | null {
@@ -61,7 +72,7 @@ export function entryProblem(value: unknown): string | null {
   const e = value as Record<string, unknown>;
   for (const k of Object.keys(e)) if (!ENTRY_KEYS.includes(k)) return `key ${JSON.stringify(k).slice(0, 40)}: not a journal key`;
   if (typeof e.capture !== 'string' || e.capture === '') return "key 'capture': expected the capture's key";
-  for (const k of ['inputSha256', 'settingsSha256'] as const)
+  for (const k of ['inputSha256', 'settingsSha256', 'rowSha256'] as const)
     if (typeof e[k] !== 'string' || !SHA256.test(e[k] as string))
       return `key '${k}': expected a SHA-256 in hex, received ${e[k] === undefined ? 'nothing' : JSON.stringify(e[k]).slice(0, 40)}`;
   const problem = rowProblem(e.row);
@@ -69,6 +80,8 @@ export function entryProblem(value: unknown): string | null {
   const row = e.row as SweepRow;
   if (row.capture !== e.capture) return `row: column 'capture': expected ${JSON.stringify(e.capture)}, as the entry`;
   if (row.input_sha256 !== e.inputSha256) return "row: column 'input_sha256': expected the entry's inputSha256";
+  if (rowFingerprint(e.row) !== e.rowSha256)
+    return "row: expected the row its fingerprint 'rowSha256' was made from (edited or damaged)";
   return null;
 }
 
@@ -161,12 +174,14 @@ export function tidyJournal(path: string, reading: JournalReading): string[] {
 }
 
 /**
- * Appends one entry as a single line, in one write of a few kilobytes.
+ * Appends one entry as a single line, in one write of a few kilobytes,
+ * with the row's fingerprint `rowSha256`.
  * @throws OutputError when the journal cannot be written (a full disk…)
  */
-export function appendJournal(path: string, entry: JournalEntry): void {
+export function appendJournal(path: string, entry: Omit<JournalEntry, 'rowSha256'>): void {
+  const line = JSON.stringify({ ...entry, rowSha256: rowFingerprint(entry.row) });
   try {
-    appendFileSync(path, `${JSON.stringify(entry)}\n`);
+    appendFileSync(path, `${line}\n`);
   } catch (e) {
     throw outputFailure(e, path, 'sweep journal', 'a writable file with room for one more row');
   }

@@ -1,6 +1,7 @@
 import { join } from 'node:path';
 import { Sha256 } from '@intradyne/core';
 import type { AnalysisSettings } from '../analysis/analyze-file.js';
+import { parseJsonFile } from '../capture/json-positions.js';
 import { InputError } from '../errors/input-error.js';
 import { readInputText } from '../load/open-file.js';
 import { writeJsonAtomic } from '../write/csv.js';
@@ -50,6 +51,8 @@ export interface ShardRecord {
   };
   /** The shard's rows, in the sweep's order. */
   readonly rows: readonly PlacedRow[];
+  /** SHA-256 (hex) of `rows` as written (`JSON.stringify(rows)`): rows edited or damaged no longer match. */
+  readonly rowsSha256: string;
 }
 
 const UTF8 = new TextEncoder();
@@ -63,28 +66,26 @@ export function listingFingerprint(inputs: SweepInputs): string {
   return new Sha256().update(UTF8.encode(inputs.captures.map((c) => `${c.key}\n`).join(''))).hex();
 }
 
-/** Writes a shard's record into its folder, atomically, replacing an earlier one. */
-export function writeShardRecord(dir: string, record: ShardRecord): string {
+/** SHA-256 (hex) of a shard's rows as written. */
+const rowsFingerprint = (rows: unknown) => new Sha256().update(UTF8.encode(JSON.stringify(rows))).hex();
+
+/** Writes a shard's record into its folder, atomically, replacing an earlier one, with the rows' fingerprint. */
+export function writeShardRecord(dir: string, record: Omit<ShardRecord, 'rowsSha256'>): string {
   const path = join(dir, SHARD_RECORD_FILE);
-  writeJsonAtomic(path, record, { overwrite: true });
+  writeJsonAtomic(path, { ...record, rowsSha256: rowsFingerprint(record.rows) }, { overwrite: true });
   return path;
 }
 
 const isWhole = (v: unknown): v is number => typeof v === 'number' && Number.isSafeInteger(v) && v >= 0;
 
 /**
- * Reads and checks a shard record, every row as `rowProblem` checks a row.
+ * Reads and checks a shard record, every row as `rowProblem` checks a row,
+ * and the rows against their fingerprint `rowsSha256`.
  * @throws InputError naming the file and the field or row that is missing or wrong
  * @example readShardRecord('lab-sweep/shard-2-of-4/shard.json').rows.length // captures of shard 2
  */
 export function readShardRecord(path: string): ShardRecord {
-  const text = readInputText(path, 'shard record');
-  let doc: Record<string, unknown>;
-  try {
-    doc = JSON.parse(text);
-  } catch (e) {
-    throw new InputError({ file: path }, 'shard record', 'a JSON file written by a sharded sweep', (e as Error).message);
-  }
+  const doc = parseJsonFile(readInputText(path, 'shard record'), path) as Record<string, unknown>;
   const bad = (field: string, expected: string) =>
     new InputError({ file: path }, `field '${field}'`, expected, JSON.stringify(doc?.[field] ?? null).slice(0, 80));
   if (doc === null || typeof doc !== 'object') throw new InputError({ file: path }, 'shard record', 'a JSON object', String(doc));
@@ -111,5 +112,7 @@ export function readShardRecord(path: string): ShardRecord {
         problem,
       );
   }
+  if (doc.rowsSha256 !== rowsFingerprint(doc.rows))
+    throw bad('rowsSha256', 'the fingerprint of the rows written with it (the rows were edited or damaged)');
   return doc as unknown as ShardRecord;
 }
