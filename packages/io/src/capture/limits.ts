@@ -65,10 +65,10 @@ export function rateProblem(sampleRate: number, symbolRate: number): string | nu
 /**
  * The largest |dispersion| in ps/nm whose compensation filter at two
  * samples per symbol of `symbolRate` has at most `maxDispersionTaps` taps.
- * @example maxDispersionPsPerNm(32e9) // about 7.9e6 ps/nm
+ * @example maxDispersionPsPerNm(32e9) // about 8.0e6 ps/nm
  */
 export function maxDispersionPsPerNm(symbolRate: number): number {
-  // The tap count is 2·⌊k·|D|/2⌋ + 1 with k linear in |D|: scale from a large |D|, where the floor is negligible.
-  const perPsPerNm = cdTapCount(1e6, 2 * symbolRate) / 1e6;
-  return perPsPerNm > 0 ? Math.floor(LIMITS.maxDispersionTaps / perPsPerNm) : Number.POSITIVE_INFINITY;
+  // The tap count is 2·⌊k·|D|/2⌋ + 1 with k linear in |D|: k from a very large |D|, where the floor is negligible.
+  const perPsPerNm = (cdTapCount(1e12, 2 * symbolRate) - 1) / 1e12;
+  return perPsPerNm > 0 ? Math.floor((LIMITS.maxDispersionTaps - 1) / perPsPerNm) : Number.POSITIVE_INFINITY;
 }

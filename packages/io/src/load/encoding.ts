@@ -42,12 +42,20 @@ export function textStart(bytes: Uint8Array): { skip: number } | { problem: stri
   if (startsWith(bytes, [0xfe, 0xff])) return { problem: 'UTF-16 text, big-endian (save it as UTF-8)' };
   for (const [sig, what] of SIGNATURES) if (startsWith(bytes, sig)) return { problem: what };
   // UTF-16 without a byte-order mark: ASCII text with a zero byte beside every character.
-  const head = bytes.subarray(0, 256);
+  const head = bytes.subarray(0, 256 - (Math.min(bytes.length, 256) % 2));
   let zeros = 0;
-  for (const b of head) if (b === 0) zeros++;
+  let oddZeros = 0;
+  let evenZeros = 0;
+  for (let i = 0; i < head.length; i++) {
+    if (head[i] !== 0) continue;
+    zeros++;
+    if (i % 2) oddZeros++;
+    else evenZeros++;
+  }
   if (zeros > 0) {
-    const everyOther = head.length >= 4 && zeros >= head.length / 2 - 2;
-    return { problem: everyOther ? 'UTF-16 text without a byte-order mark (save it as UTF-8)' : 'binary data (zero bytes)' };
+    const half = head.length / 2;
+    const utf16 = head.length >= 4 && (oddZeros === half || evenZeros === half) && zeros === half;
+    return { problem: utf16 ? 'UTF-16 text without a byte-order mark (save it as UTF-8)' : 'binary data (zero bytes)' };
   }
   return { skip: 0 };
 }
