@@ -20,7 +20,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { readCsvCapture } from '../../src/load/csv-capture.js';
 import { expectCompleteOutputs, expectTypedOutcome, snapshot } from '../support/outputs.js';
 import { BUILT_CLI, type CliRun, runBuilt, runBuiltWithin } from '../support/run-cli.js';
-import { tinyCaptures } from '../support/tiny-captures.js';
+import { sweptTinyCaptures } from '../support/tiny-captures.js';
 
 // The fault catalogue: every kind of bad input and file-system fault found
 // against the command, each run through the built command in a child
@@ -53,13 +53,8 @@ let captures: string;
 let referenceSweep: string;
 
 beforeAll(async () => {
-  base = mkdtempSync(join(tmpdir(), 'intradyne-faults-'));
-  captures = join(base, 'captures');
-  tinyCaptures(captures);
-  referenceSweep = join(base, 'reference-sweep');
-  // One worker: the journal's lines come in the captures' order (a, b, c), which the journal cases edit.
-  const r = await runBuilt(['sweep', captures, '--jobs', '1', '--out', referenceSweep]);
-  expect(r.code, r.stderr).toBe(0);
+  // The journal's lines come in the captures' order (a, b, c), which the journal cases edit.
+  ({ base, captures, referenceSweep } = await sweptTinyCaptures('intradyne-faults-'));
 });
 afterAll(() => rmSync(base, { recursive: true, force: true }));
 

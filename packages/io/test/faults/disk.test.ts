@@ -1,10 +1,9 @@
-import { cpSync, existsSync, mkdirSync, mkdtempSync, readdirSync, readFileSync, rmSync, statSync, writeFileSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { cpSync, existsSync, mkdirSync, readdirSync, readFileSync, rmSync, statSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { afterAll, afterEach, beforeAll, describe, expect, it } from 'vitest';
 import { expectCompleteOutputs, expectTypedOutcome, snapshot } from '../support/outputs.js';
 import { runBuilt, runBuiltWithin } from '../support/run-cli.js';
-import { tinyCaptures } from '../support/tiny-captures.js';
+import { sweptTinyCaptures } from '../support/tiny-captures.js';
 import { blockSize, fillLeaving, mountTmpfs, remount, unmount } from '../support/tmpfs.js';
 
 // Disk-full and read-only faults on a small tmpfs of our own (the suite
@@ -27,12 +26,7 @@ let sizes: { symbols: number; json: number; report: number };
 const mounted: string[] = [];
 
 beforeAll(async () => {
-  base = mkdtempSync(join(tmpdir(), 'intradyne-disk-'));
-  inputs = join(base, 'in');
-  tinyCaptures(inputs);
-  referenceSweep = join(base, 'reference-sweep');
-  const sweep = await runBuilt(['sweep', inputs, '--jobs', '1', '--out', referenceSweep]);
-  expect(sweep.code, sweep.stderr).toBe(0);
+  ({ base, captures: inputs, referenceSweep } = await sweptTinyCaptures('intradyne-disk-'));
   const out = join(base, 'reference-analysis');
   const a = await runBuilt(['analyze', join(inputs, 'a.csv'), '--out', out, '--report', join(base, 'a.html')]);
   expect(a.code, a.stderr).toBe(0);

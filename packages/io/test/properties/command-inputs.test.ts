@@ -3,9 +3,10 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import fc from 'fast-check';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { DESCRIPTOR_FIELDS } from '../../src/capture/descriptor.js';
 import { expectCompleteOutputs, expectTypedOutcome, snapshot } from '../support/outputs.js';
 import { type CliRun, runBuilt, runBuiltWithin, runMain } from '../support/run-cli.js';
-import { tinyCaptures } from '../support/tiny-captures.js';
+import { sweptTinyCaptures } from '../support/tiny-captures.js';
 
 // Properties over the command's inputs: whatever the descriptor, the option
 // values, the CSV bytes, the journal lines, the manifest, the scenario or a
@@ -21,12 +22,7 @@ let referenceSweep: string;
 let shardRecord: string;
 
 beforeAll(async () => {
-  base = mkdtempSync(join(tmpdir(), 'intradyne-properties-'));
-  captures = join(base, 'captures');
-  tinyCaptures(captures);
-  referenceSweep = join(base, 'reference-sweep');
-  const r = await runBuilt(['sweep', captures, '--jobs', '1', '--out', referenceSweep]);
-  expect(r.code, r.stderr).toBe(0);
+  ({ base, captures, referenceSweep } = await sweptTinyCaptures('intradyne-properties-'));
   const shard = await runBuilt(['sweep', captures, '--jobs', '1', '--shard', '0/1', '--out', join(base, 'sharded')]);
   expect(shard.code, shard.stderr).toBe(0);
   shardRecord = readFileSync(join(base, 'sharded', 'shard-0-of-1', 'shard.json'), 'utf8');
@@ -98,19 +94,8 @@ const jsonValue: fc.Arbitrary<unknown> = fc.oneof(
   ),
 );
 
-const FIELDS = [
-  'sampleRate',
-  'symbolRate',
-  'modulation',
-  'reference',
-  'rollOff',
-  'dispersionPsPerNm',
-  'skewPs',
-  'columns',
-  'notes',
-  'simulation',
-  'unknownField',
-] as const;
+/** The descriptor's fields and one it does not have. */
+const FIELDS = [...DESCRIPTOR_FIELDS, 'unknownField'] as const;
 
 describe('properties of the command over its inputs', () => {
   it('any descriptor: analyze ends typed, the capture untouched', async () => {

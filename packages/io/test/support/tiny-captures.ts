@@ -1,5 +1,9 @@
+import { mkdtempSync } from 'node:fs';
+import { tmpdir } from 'node:os';
 import { join } from 'node:path';
+import { expect } from 'vitest';
 import { runScenario } from '../../src/scenarios/run.js';
+import { runBuilt } from './run-cli.js';
 
 /**
  * Three small simulated DP-QPSK captures in `dir` (a.csv, b.csv, c.csv with
@@ -32,4 +36,29 @@ export function tinyCaptures(dir: string): string[] {
     dir,
   );
   return written.map((w) => join(dir, `${w.name}.csv`));
+}
+
+/** The tiny captures and the sweep of them that the fault and property suites compare against. */
+export interface SweptCaptures {
+  /** A fresh temporary folder holding the rest (the caller removes it). */
+  readonly base: string;
+  /** The folder of the three captures. */
+  readonly captures: string;
+  /** The output folder of a whole sweep of them: results.csv, results.arrow, journal.jsonl. */
+  readonly referenceSweep: string;
+}
+
+/**
+ * {@link tinyCaptures} in a new temporary folder, swept once with the built
+ * command on one worker (so that the journal's lines come in the captures'
+ * order: a, b, c).
+ */
+export async function sweptTinyCaptures(prefix: string): Promise<SweptCaptures> {
+  const base = mkdtempSync(join(tmpdir(), prefix));
+  const captures = join(base, 'captures');
+  tinyCaptures(captures);
+  const referenceSweep = join(base, 'reference-sweep');
+  const r = await runBuilt(['sweep', captures, '--jobs', '1', '--out', referenceSweep]);
+  expect(r.code, r.stderr).toBe(0);
+  return { base, captures, referenceSweep };
 }
