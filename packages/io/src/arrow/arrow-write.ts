@@ -125,7 +125,12 @@ export function stageSymbolsArrowStreaming<T>(
   path: string,
   produce: (add: (symbols: DualPol) => void) => T,
   options: AtomicWriteOptions & { readonly format?: 'file' | 'stream' } = {},
-): { readonly staged: StagedFile; readonly result: T } {
+): {
+  /** The complete file under its temporary name, to commit or discard. */
+  readonly staged: StagedFile;
+  /** What `produce` returned. */
+  readonly result: T;
+} {
   let result: T | undefined;
   const staged = stageFile(
     path,

@@ -73,7 +73,12 @@ export interface CaptureDescription {
    * Where a descriptor field's value came from: its place in the descriptor
    * (line and column when known) or the option that overrode it.
    */
-  origin(field: string): InputLocation | { readonly option: string };
+  origin(field: string):
+    | InputLocation
+    | {
+        /** The option that gave the value, e.g. '--symbol-rate'. */
+        readonly option: string;
+      };
   /** Streams the capture in blocks (bounded memory); `blockSize` applies to CSV (Arrow yields one block per batch). */
   blocks(options?: { readonly blockSize?: number }): Generator<ChannelBlock, void, undefined>;
   /** The asynchronous form of `blocks`. */

@@ -28,7 +28,7 @@ export function linkTarget(path: string): string | undefined {
 
 /**
  * Opens an input file for reading and returns its descriptor. The one way
- * this package opens a user's file: it never blocks (see {@link READ_NOW})
+ * this package opens a user's file: it never blocks (it opens with O_NONBLOCK)
  * and refuses anything but a regular file, so that a folder, a FIFO or a
  * device in place of a file is a typed error naming it, not a hang or a
  * stack trace.
@@ -101,7 +101,7 @@ const utf8 = new TextDecoder('utf-8', { fatal: true });
 
 /**
  * Reads a whole input file's bytes: a regular file only (see
- * {@link openInput}), at most {@link MAX_TEXT_BYTES}.
+ * {@link openInput}), at most 1 GiB.
  * @param what what the file is read as, for messages
  * @throws InputError naming the file: unreadable, not a regular file, or too large
  * @example const bytes = readInputBytes('lab-sweep/journal.jsonl', 'sweep journal');
@@ -134,7 +134,7 @@ export function readInputBytes(path: string, what = 'file'): Uint8Array {
  * named in the error instead of decoded.
  * @param what what the file is read as, for messages
  * @throws InputError naming the file: unreadable, not a regular file, larger
- *   than {@link MAX_TEXT_BYTES}, or not UTF-8 text
+ *   than 1 GiB, or not UTF-8 text
  * @example const text = readInputText('lab/run-07.json', 'descriptor');
  */
 export function readInputText(path: string, what = 'file'): string {
