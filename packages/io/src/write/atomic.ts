@@ -16,7 +16,7 @@ import {
   writeSync,
 } from 'node:fs';
 import { basename, dirname, join } from 'node:path';
-import { isSystemError, kindOf, outputFailure, systemReason } from '../errors/file-system.js';
+import { isSystemError, kindOf, outputFailure } from '../errors/file-system.js';
 import { OutputError, OutputExistsError } from '../errors/output-error.js';
 
 export { OutputExistsError } from '../errors/output-error.js';
@@ -292,9 +292,4 @@ function flushFolder(dir: string): void {
   } finally {
     if (fd !== undefined) closeSync(fd);
   }
-}
-
-/** For messages elsewhere: the system's reason of a failed call, or the error's own message. */
-export function reasonOf(e: unknown): string {
-  return isSystemError(e) ? systemReason(e) : e instanceof Error ? e.message : String(e);
 }

@@ -46,6 +46,8 @@ interface Case {
   readonly stdout?: RegExp;
   /** Further checks. */
   readonly after?: (work: string, run: CliRun) => void;
+  /** Environment variables for the run. */
+  readonly env?: (work: string) => Record<string, string>;
 }
 
 let base: string;
@@ -500,6 +502,14 @@ const CASES: Record<string, Case[]> = {
       },
       code: 2,
       stderr: /shard\.json: shard record: expected a file that can be removed, received ERR_FS_EISDIR \(a folder\)/,
+    },
+    {
+      name: "the demo's temporary folder (TMPDIR) does not exist",
+      setup: () => ['demo'],
+      env: (w) => ({ TMPDIR: join(w, 'no-such-folder') }),
+      code: 2,
+      stderr:
+        /no-such-folder: temporary folder: expected a writable folder for the demo \(set TMPDIR to another\), received ENOENT/,
     },
     {
       name: 'the sweep input does not exist',
@@ -1100,7 +1110,7 @@ describe('the fault catalogue: every case ends in its exit code with a typed mes
             const argv = await c.setup(work);
             const watched = join(work, 'in');
             const before = readdirSync(work).includes('in') ? snapshot(watched) : null;
-            const run = await runBuiltWithin(argv, DEADLINE_MS);
+            const run = await runBuiltWithin(argv, DEADLINE_MS, c.env?.(work));
             expect(run.hung, `${c.name}: still running after ${DEADLINE_MS} ms`).toBe(false);
             expectTypedOutcome(run, c.name);
             expect(run.code, `${c.name}\nstdout: ${run.stdout}\nstderr: ${run.stderr}`).toBe(c.code);
