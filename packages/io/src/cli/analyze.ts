@@ -147,6 +147,7 @@ export function analyzeCommand(argv: readonly string[], out: (s: string) => void
   if (dir !== undefined) prepareOutputFolder(dir);
   const staged: StagedFile[] = [];
   let analysis: FileAnalysis;
+  let json: Record<string, unknown>;
   try {
     if (dir === undefined) analysis = analyzeOpenCapture(capture, analysisSettings);
     else {
@@ -163,22 +164,23 @@ export function analyzeCommand(argv: readonly string[], out: (s: string) => void
       staged.push(symbols.staged);
       analysis = symbols.result;
     }
+    json = analysisToJson(analysis);
+    // Every output is complete on disk before any is put in place: all of them or none.
+    const jsonText = `${JSON.stringify(json, null, 2)}\n`;
+    const html = reportPath !== undefined ? analysisReport(analysis) : undefined;
+    commitTogether([
+      ...staged.map((s) => () => s),
+      ...(dir !== undefined
+        ? [() => stageFile(join(dir, `${capture.name}.analysis.json`), (append) => append(jsonText), { overwrite: true })]
+        : []),
+      ...(reportPath !== undefined && html !== undefined ? [() => stageReport(reportPath, html, inputs)] : []),
+    ]);
   } catch (e) {
+    // Whatever failed, no temporary file stays behind (a committed file is not touched).
     for (const s of staged) s.discard();
     throw e;
   }
   for (const w of capture.warnings) err(`warning: ${w}\n`);
-  const json = analysisToJson(analysis);
-  // Every output is complete on disk before any is put in place: all of them or none.
-  const jsonText = `${JSON.stringify(json, null, 2)}\n`;
-  const html = reportPath !== undefined ? analysisReport(analysis) : undefined;
-  commitTogether([
-    ...staged.map((s) => () => s),
-    ...(dir !== undefined
-      ? [() => stageFile(join(dir, `${capture.name}.analysis.json`), (append) => append(jsonText), { overwrite: true })]
-      : []),
-    ...(reportPath !== undefined && html !== undefined ? [() => stageReport(reportPath, html, inputs)] : []),
-  ]);
   if (reportPath !== undefined) err(`report: ${reportPath}\n`);
   if (values.json) out(`${JSON.stringify(json)}\n`);
   else out(summary(analysis));
