@@ -13,6 +13,7 @@ export {
 } from './analysis/analyze-file.js';
 export {
   type ArrowCaptureOptions,
+  arrowStreamComplete,
   loadArrowCapture,
   loadReferenceArrow,
   readArrowCapture,
@@ -22,9 +23,14 @@ export {
 export {
   type ArrowWriteOptions,
   type ResultRow,
+  type ResultsArrowOptions,
+  type ResultsColumnKind,
+  resultsArrowBytes,
+  stageSymbolsArrowStreaming,
   writeCaptureArrow,
   writeResultsArrow,
   writeSymbolsArrow,
+  writeSymbolsArrowStreaming,
 } from './arrow/arrow-write.js';
 export {
   type CaptureDescription,
@@ -43,6 +49,7 @@ export {
   readDescriptor,
 } from './capture/descriptor.js';
 export { type PositionedJson, parseJsonWithPositions } from './capture/json-positions.js';
+export { LIMITS, maxDispersionPsPerNm } from './capture/limits.js';
 export {
   checkReferenceConstellation,
   loadReferenceCsv,
@@ -51,7 +58,10 @@ export {
 } from './capture/reference.js';
 export { type InspectReport, inspectCapture } from './cli/inspect.js';
 export { main } from './cli/main.js';
+export { inputFailure, outputFailure } from './errors/file-system.js';
 export { InputError, type InputLocation } from './errors/input-error.js';
+export { OutputError } from './errors/output-error.js';
+export { UsageError } from './errors/usage-error.js';
 export {
   type CaptureColumn,
   type ChannelFiles,
@@ -63,6 +73,7 @@ export {
   readCsvCaptureFiles,
 } from './load/csv-capture.js';
 export { parseDecimal } from './load/decimal.js';
+export { openInput, readInputText } from './load/open-file.js';
 export { SAMPLE_RATE_TOLERANCE, TIME_STEP_TOLERANCE } from './load/time-axis.js';
 export { analysisReport } from './report/analysis-report.js';
 export { type SweepReportContext, sweepReport } from './report/sweep-report.js';
@@ -71,10 +82,27 @@ export { type RunScenarioOptions, runScenario, type WrittenCapture } from './sce
 export { BUILT_IN_SCENARIOS, builtInScenario, mergeOptions, type Scenario } from './scenarios/scenario.js';
 export { runSweepTask, type SweepOutcome, type SweepTask } from './sweep/analyze-task.js';
 export { pipelineFingerprint, settingsFingerprint } from './sweep/fingerprint.js';
+export { type FolderLock, LOCK_FILE, type LockHolder, lockFolder } from './sweep/folder-lock.js';
 export { captureInputHash } from './sweep/input-hash.js';
-export { JOURNAL_FILE, type JournalEntry, readJournal } from './sweep/journal.js';
+export {
+  entryProblem,
+  inspectJournal,
+  JOURNAL_FILE,
+  type JournalEntry,
+  type JournalReading,
+  readJournal,
+  SET_ASIDE_FILE,
+  type SetAsideLine,
+} from './sweep/journal.js';
 export { type MergeReport, mergeShards } from './sweep/merge-shards.js';
-export { RESULT_COLUMNS, type SweepRow, TEXT_COLUMNS } from './sweep/result-row.js';
+export {
+  BOOLEAN_COLUMNS,
+  INTEGER_COLUMNS,
+  RESULT_COLUMNS,
+  rowProblem,
+  type SweepRow,
+  TEXT_COLUMNS,
+} from './sweep/result-row.js';
 export type { ResultsTableFiles } from './sweep/results-table.js';
 export { defaultSweepOut, runSweep, type SweepOptions, type SweepReport } from './sweep/run-sweep.js';
 export { inShard, type ShardSpec, shardOf } from './sweep/shard.js';
@@ -88,5 +116,14 @@ export {
 export { type SlurmScriptOptions, slurmScript } from './sweep/slurm-script.js';
 export { readManifest, type SweepCapture, type SweepInputs, sweepInputs } from './sweep/sweep-inputs.js';
 export { type SweepOutputPaths, writeSweepOutputs } from './sweep/sweep-outputs.js';
-export { type AtomicWriteOptions, OutputExistsError, writeFileAtomic } from './write/atomic.js';
+export {
+  type AtomicWriteOptions,
+  checkOutputFile,
+  commitTogether,
+  OutputExistsError,
+  prepareOutputFolder,
+  type StagedFile,
+  stageFile,
+  writeFileAtomic,
+} from './write/atomic.js';
 export { type CaptureCsvOptions, writeCaptureCsv, writeJsonAtomic, writeReferenceCsv } from './write/csv.js';

@@ -45,7 +45,8 @@ export interface SpectrumSummary {
  * of the bins, i.e. below about 1.5 samples per symbol); iterate twice; then
  * integrate P − N₀ over |f − fc| ≤ 0.75·B₃. Valid for β ≤ 0.5; the spectrum is
  * treated as periodic, so a band that wraps around ±fs/2 is handled.
- * @throws RangeError when the spectrum holds no signal above its floor
+ * @throws RangeError when the spectrum holds no signal above its floor, or
+ *   no band of positive width (a pure tone)
  * @example const s = summarizeSpectrum(welchPsd(block.x, 64e9)); s.symbolRateBd;
  */
 export function summarizeSpectrum(s: PowerSpectrum): SpectrumSummary {
@@ -78,6 +79,8 @@ export function summarizeSpectrum(s: PowerSpectrum): SpectrumSummary {
     let b = peak;
     while (sm(b + 1) >= half && b - peak < n) b++;
     hi = b + (sm(b) - half) / (sm(b) - sm(b + 1));
+    // A tone or a level step has no band to measure (and would give no positive width below).
+    if (!(hi - lo > 0 && hi - lo < n)) throw new RangeError('summarizeSpectrum: expected a signal band wider than one bin');
     centre = (lo + hi) / 2;
     const width = hi - lo;
     let acc = 0;

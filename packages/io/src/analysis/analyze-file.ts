@@ -1,5 +1,4 @@
 import { createHash } from 'node:crypto';
-import { readFileSync } from 'node:fs';
 import type { ReceiverSettings } from '@intradyne/core';
 import {
   type AnalysisResult,
@@ -9,7 +8,11 @@ import {
   type QualityFigures,
 } from '@intradyne/metrics';
 import { type CaptureDescription, openCapture } from '../capture/capture.js';
+import { parseJsonFile } from '../capture/json-positions.js';
 import { InputError } from '../errors/input-error.js';
+import { UsageError } from '../errors/usage-error.js';
+import { readInputText } from '../load/open-file.js';
+import { SpectrumAccumulator } from './spectrum-estimate.js';
 
 /** What may change the receiver for one analysis (command-line options or a pipeline file). */
 export interface AnalysisSettings {
@@ -46,7 +49,19 @@ export function analyzeFile(path: string, settings: AnalysisSettings = {}): File
 /**
  * {@link analyzeFile} on a capture already opened with {@link openCapture}
  * (with `settings.overrides`): for a caller that needs its name first.
- * @throws InputError for malformed data met while streaming
+ *
+ * Two failures of the analysis are the input's, and are thrown as such
+ * rather than returned as a failed analysis: a capture too short to measure
+ * with the default lead-in (the data file named, with its length; with
+ * `analysis.skipSymbols` set, the failure stays the analysis's), and a stated symbol rate that
+ * the data do not carry — checked only after the analysis failed (any check
+ * but the reference's, which a wrong rate does not explain), by estimating the
+ * symbol rate from the spectrum of the first {@link RATE_CHECK_SAMPLES}
+ * samples; more than {@link RATE_MISMATCH} away from the stated one, the
+ * descriptor's field (or the option) is named with both rates.
+ * @throws InputError for malformed data met while streaming, a capture too
+ *   short to measure, or rates the data do not fit; UsageError when the
+ *   symbol rate that does not fit came from an option
  */
 export function analyzeOpenCapture(capture: CaptureDescription, settings: AnalysisSettings = {}): FileAnalysis {
   const receiver: ReceiverSettings = {
@@ -62,7 +77,55 @@ export function analyzeOpenCapture(capture: CaptureDescription, settings: Analys
   // Read from the file again on each iteration: a data-aided analysis passes over the capture twice.
   const blocks = { [Symbol.iterator]: () => capture.blocks({ blockSize: settings.blockSize }) };
   const result = analyzeCapture(blocks, receiver, capture.reference, { inputHasher: nativeSha256, ...settings.analysis });
+  // The rates first: a wrong symbol rate also makes a capture look short in symbols.
+  if (!result.ok && result.failure?.check !== 'reference') checkRatesFit(capture, result.failure?.reason ?? '');
+  // Too short for the default lead-in: the capture is at fault, whichever check noticed it first (ten samples
+  // make the equalizer fail before the length is checked). With a lead-in chosen by the caller, the analysis
+  // failed for that choice, and says so.
+  if (!result.ok && settings.analysis?.skipSymbols === undefined) {
+    const samples = result.record.samples;
+    const symbols = Math.floor(samples / capture.samplesPerSymbol);
+    const { skipSymbols, skipTailSymbols } = result.record.analysis;
+    if (result.failure?.check === 'length' || symbols <= skipSymbols + skipTailSymbols)
+      throw new InputError(
+        { file: capture.dataPath },
+        'data',
+        `a capture long enough to measure (more than ${skipSymbols + skipTailSymbols} symbols: ${skipSymbols} leading ones are left out while the receiver settles, ${skipTailSymbols} trailing)`,
+        `${samples} samples (${symbols} symbols at ${capture.samplesPerSymbol} samples per symbol)`,
+      );
+  }
   return { capture, result };
+}
+
+/** Samples of a capture whose spectrum checks the stated symbol rate after a failed analysis: 2^18. */
+export const RATE_CHECK_SAMPLES = 1 << 18;
+
+/**
+ * Largest relative difference between the stated symbol rate and the one
+ * the spectrum shows before the rates are blamed: 0.25. The estimate is
+ * within a few per cent on raised-cosine signals of 2,000 symbols or more
+ * (inspect's tests), so a quarter leaves room for filtered or noisy captures.
+ */
+export const RATE_MISMATCH = 0.25;
+
+/**
+ * After a failed analysis: throws when the spectrum of the data shows a
+ * symbol rate far from the stated one (see {@link analyzeOpenCapture}).
+ */
+function checkRatesFit(capture: CaptureDescription, failure: string): void {
+  const spectrum = new SpectrumAccumulator();
+  for (const b of capture.blocks()) {
+    spectrum.push(b);
+    if (spectrum.samples >= RATE_CHECK_SAMPLES) break;
+  }
+  const seen = spectrum.result()?.symbolRateBd ?? null;
+  if (seen === null || Math.abs(seen / capture.symbolRate - 1) <= RATE_MISMATCH) return;
+  const expected =
+    `a symbol rate the data carry (the analysis failed: ${failure.split(':')[0]}; at the stated ${capture.sampleRate} Sa/s ` +
+    `the spectrum of the data shows about ${(seen / 1e9).toPrecision(3)} GBd: check the symbol rate and the sample rate)`;
+  const origin = capture.origin('symbolRate');
+  if ('option' in origin) throw new UsageError(`${origin.option}: expected ${expected}, received ${capture.symbolRate}`);
+  throw new InputError(origin, "field 'symbolRate'", expected, String(capture.symbolRate));
 }
 
 /** Node's SHA-256 (the same digest as core's, several times faster over the samples). */
@@ -81,12 +144,7 @@ function nativeSha256(): InputHasher {
  * @throws InputError naming the file for unreadable JSON or other keys
  */
 export function readPipelineFile(path: string): Pick<AnalysisSettings, 'receiver' | 'analysis'> {
-  let doc: unknown;
-  try {
-    doc = JSON.parse(readFileSync(path, 'utf8'));
-  } catch (e) {
-    throw new InputError({ file: path }, 'pipeline', 'a readable JSON file', (e as Error).message);
-  }
+  const doc = parseJsonFile(readInputText(path, 'pipeline'), path);
   if (typeof doc !== 'object' || doc === null || Array.isArray(doc))
     throw new InputError({ file: path }, 'pipeline', 'a JSON object', typeof doc);
   for (const k of Object.keys(doc)) {
@@ -109,6 +167,8 @@ function figures(f: QualityFigures) {
     evmRms: f.evmRms,
     snrDb: f.snrDb,
     qDb: f.qDb,
+    // Q is computed from the BER: from its upper bound, it is a lower bound.
+    qIsLowerBound: f.qDb === null ? null : f.berIsUpperBound,
     gmi: f.gmi,
     ngmi: f.ngmi,
     mi: f.mi,
@@ -118,16 +178,49 @@ function figures(f: QualityFigures) {
 }
 
 /**
+ * The combined linewidth as a figure: the estimate when it is positive,
+ * else null (a statistical estimate that comes out at or below zero says
+ * the phase noise is below what it resolves, not a negative linewidth).
+ * @example presentedLinewidth(-1200) // { linewidthHz: null, linewidthBelowResolution: true }
+ */
+export function presentedLinewidth(estimateHz: number): { linewidthHz: number | null; linewidthBelowResolution: boolean } {
+  if (Number.isFinite(estimateHz) && estimateHz <= 0) return { linewidthHz: null, linewidthBelowResolution: true };
+  return { linewidthHz: Number.isFinite(estimateHz) ? estimateHz : null, linewidthBelowResolution: false };
+}
+
+/** The phase stage's diagnostics with its linewidth estimates presented as {@link presentedLinewidth} does. */
+function withPresentedLinewidths(diagnostics: AnalysisResult['diagnostics']): AnalysisResult['diagnostics'] {
+  const phase = diagnostics.phase as { linewidthHz?: unknown; linewidthPerPolHz?: { x?: unknown; y?: unknown } } | null;
+  if (!phase || typeof phase.linewidthHz !== 'number') return diagnostics;
+  const shown = (v: unknown) => (typeof v === 'number' ? presentedLinewidth(v).linewidthHz : v);
+  const perPol = phase.linewidthPerPolHz;
+  return {
+    ...diagnostics,
+    phase: {
+      ...phase,
+      linewidthHz: shown(phase.linewidthHz),
+      ...(perPol ? { linewidthPerPolHz: { ...perPol, x: shown(perPol.x), y: shown(perPol.y) } } : {}),
+    },
+  } as AnalysisResult['diagnostics'];
+}
+
+/**
  * The analysis as one plain JSON object (the `analyze --json` output): the
  * figures at the top level and per polarization, the frequency offset, the
  * slips, the penalty, every stage's diagnostics and the reproducibility
- * record. Figures are null when the analysis failed.
+ * record. Figures are null when the analysis failed. Every figure that is a
+ * bound says so beside it: `berIsUpperBound` (no bit error counted: `ber`
+ * is the upper end of its 95 % interval) and `qIsLowerBound` (Q from that
+ * bound); `linewidthHz` is null with `linewidthBelowResolution` true when
+ * the estimate came out at or below zero. `warnings` lists what was
+ * noticed without failing.
  * @example console.log(JSON.stringify(analysisToJson(analyzeFile('run-07.csv'))));
  */
 export function analysisToJson({ capture, result }: FileAnalysis): Record<string, unknown> {
   const m = result.measurement;
   const none = {
     ber: null,
+    berIsUpperBound: null,
     berCi95: null,
     bitErrors: null,
     bits: null,
@@ -135,6 +228,7 @@ export function analysisToJson({ capture, result }: FileAnalysis): Record<string
     evmRms: null,
     snrDb: null,
     qDb: null,
+    qIsLowerBound: null,
     gmi: null,
     ngmi: null,
     mi: null,
@@ -149,10 +243,11 @@ export function analysisToJson({ capture, result }: FileAnalysis): Record<string
     ok: result.ok,
     equalizerTraining: result.equalizerTraining,
     failure: result.failure,
+    warnings: capture.warnings,
     ...(m ? figures(m) : none),
     freqOffsetHz: result.freqOffsetHz,
     cycleSlips: result.cycleSlips.count,
-    linewidthHz: result.linewidthHz,
+    ...presentedLinewidth(result.linewidthHz),
     implementationPenaltyDb: result.implementationPenaltyDb,
     airBitsPerSecond: m?.airBitsPerSecond ?? null,
     perPol: m
@@ -165,7 +260,7 @@ export function analysisToJson({ capture, result }: FileAnalysis): Record<string
     slipCorrection: m?.slipCorrection ?? null,
     modulationFit: result.modulationFit,
     slips: result.cycleSlips,
-    diagnostics: result.diagnostics,
+    diagnostics: withPresentedLinewidths(result.diagnostics),
     record: result.record,
   }) as Record<string, unknown>;
 }

@@ -1,4 +1,4 @@
-import { closeSync, fstatSync, readSync } from 'node:fs';
+import { closeSync, fstatSync } from 'node:fs';
 import { CHANNEL_NAMES, type ChannelBlock, type ChannelName, concatBlocks, type DualPol } from '@intradyne/core';
 import {
   MessageReader,
@@ -9,9 +9,10 @@ import {
   Type,
   type Vector,
 } from 'apache-arrow';
+import { LIMITS } from '../capture/limits.js';
 import { checkReferenceLength, dualPolFromColumns, REFERENCE_COLUMNS } from '../capture/reference.js';
-import { InputError } from '../errors/input-error.js';
-import { openForReading, openForReadingAsync } from '../load/open-file.js';
+import { InputError, withLinkTarget } from '../errors/input-error.js';
+import { linkTarget, openInput, openInputAsync, readInput } from '../load/open-file.js';
 
 /** Options of the Arrow capture readers ({@link readArrowCapture}, {@link loadArrowCapture}). */
 export interface ArrowCaptureOptions {
@@ -150,8 +151,8 @@ const SCHEMA_MESSAGE = 1;
  * `close` releases the file.
  * @throws InputError when the file cannot be opened or its bytes are not Arrow IPC
  */
-function openSyncReader(path: string): { reader: RecordBatchReader; close: () => void } {
-  const fd = openForReading(path);
+function openSyncReader(path: string, what: string): { reader: RecordBatchReader; close: () => void } {
+  const fd = openInput(path, what);
   let closed = false;
   const close = () => {
     if (!closed) closeSync(fd);
@@ -159,7 +160,7 @@ function openSyncReader(path: string): { reader: RecordBatchReader; close: () =>
   };
   const at = (position: number, length: number): Uint8Array => {
     const b = Buffer.allocUnsafe(Math.max(0, length));
-    const n = readSync(fd, b, 0, b.length, position);
+    const n = readInput(fd, path, what, b, 0, b.length, position);
     return b.subarray(0, n);
   };
   try {
@@ -233,11 +234,13 @@ function* batchesOf(reader: RecordBatchReader, file: string): Generator<RecordBa
  * @example for (const block of readArrowCapture('run-07.arrow')) chain.process(block);
  */
 export function* readArrowCapture(path: string, options: ArrowCaptureOptions = {}): Generator<ChannelBlock, void, undefined> {
-  const { reader, close } = openSyncReader(path);
+  const { reader, close } = openSyncReader(path, 'capture');
   try {
     const blocks = new ArrowBlocks(path, options);
     for (const batch of batchesOf(reader, path)) yield blocks.block(batch);
     blocks.finish();
+  } catch (e) {
+    throw withLinkTarget(e, path, linkTarget(path));
   } finally {
     close();
   }
@@ -251,7 +254,7 @@ export async function* readArrowCaptureAsync(
   path: string,
   options: ArrowCaptureOptions = {},
 ): AsyncGenerator<ChannelBlock, void, undefined> {
-  const handle = await openForReadingAsync(path);
+  const handle = await openInputAsync(path, 'capture');
   try {
     let reader: AsyncIterable<RecordBatch>;
     try {
@@ -298,9 +301,11 @@ export function loadArrowCapture(path: string, options: ArrowCaptureOptions = {}
  * @example readArrowMetadata('run-07.arrow').get('symbolRate') // the text stored, e.g. '32e9'
  */
 export function readArrowMetadata(path: string): ReadonlyMap<string, string> {
-  const { reader, close } = openSyncReader(path);
+  const { reader, close } = openSyncReader(path, 'capture');
   try {
     return reader.schema.metadata;
+  } catch (e) {
+    throw withLinkTarget(e, path, linkTarget(path));
   } finally {
     close();
   }
@@ -312,18 +317,28 @@ export function readArrowMetadata(path: string): ReadonlyMap<string, string> {
  * @example const ref = loadReferenceArrow('tx-symbols.arrow'); ref.x.length / 2; // symbols
  */
 export function loadReferenceArrow(path: string): DualPol {
-  const { reader, close } = openSyncReader(path);
+  const { reader, close } = openSyncReader(path, 'reference');
   const parts: Float64Array[][] = [[], [], [], []];
   let indexes: number[] | null = null;
   let row = 0;
   try {
     for (const batch of batchesOf(reader, path)) {
       indexes ??= columnIndexes(batch.schema, REFERENCE_COLUMNS, path);
+      // Checked before the batch is copied, so that a huge file is refused before it fills the memory.
+      if (row + batch.numRows > LIMITS.maxReferenceSymbols)
+        throw new InputError(
+          { file: path },
+          'reference',
+          `at most ${LIMITS.maxReferenceSymbols} symbols`,
+          `more (${row + batch.numRows} rows so far)`,
+        );
       for (const [s, i] of indexes.entries())
         parts[s].push(columnValues(batch.getChildAt(i) as Vector, REFERENCE_COLUMNS[s], row, path));
       row += batch.numRows;
     }
     if (indexes === null) columnIndexes(reader.schema, REFERENCE_COLUMNS, path);
+  } catch (e) {
+    throw withLinkTarget(e, path, linkTarget(path));
   } finally {
     close();
   }
@@ -339,4 +354,33 @@ export function loadReferenceArrow(path: string): DualPol {
   const symbols = dualPolFromColumns(joined[0], joined[1], joined[2], joined[3]);
   checkReferenceLength(symbols, path);
   return symbols;
+}
+
+/** The end-of-stream marker of the Arrow IPC stream format: the continuation 0xFFFFFFFF and a zero length. */
+const END_OF_STREAM = [0xff, 0xff, 0xff, 0xff, 0, 0, 0, 0];
+
+/**
+ * Whether an Arrow IPC stream ends with its end-of-stream marker. A stream
+ * cut exactly between two record batches reads without an error, one batch
+ * short; the marker's absence is the only sign of it. (Every writer of the
+ * format writes the marker when it closes the stream; the IPC file format
+ * ends with a footer instead, and a cut file fails to open.)
+ * @returns true for an IPC file, or for a stream ending with the marker
+ * @throws InputError when the file cannot be read
+ * @example if (!arrowStreamComplete('run-07.arrows')) console.warn('run-07.arrows may have been cut short');
+ */
+export function arrowStreamComplete(path: string): boolean {
+  const fd = openInput(path, 'capture');
+  try {
+    const size = fstatSync(fd).size;
+    const head = new Uint8Array(FILE_MAGIC.length);
+    readInput(fd, path, 'capture', head, 0, head.length, 0);
+    if (Buffer.from(head).toString('latin1') === FILE_MAGIC) return true;
+    if (size < END_OF_STREAM.length) return false;
+    const tail = new Uint8Array(END_OF_STREAM.length);
+    readInput(fd, path, 'capture', tail, 0, tail.length, size - tail.length);
+    return END_OF_STREAM.every((b, i) => tail[i] === b);
+  } finally {
+    closeSync(fd);
+  }
 }

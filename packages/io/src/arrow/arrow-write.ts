@@ -1,7 +1,9 @@
 import type { DualPol, ScopeChannels } from '@intradyne/core';
 import {
   AsyncByteQueue,
+  Bool,
   Float64,
+  Int64,
   makeTable,
   RecordBatchFileWriter,
   RecordBatchStreamWriter,
@@ -11,7 +13,7 @@ import {
   type Vector,
   vectorFromArray,
 } from 'apache-arrow';
-import { type AtomicWriteOptions, writeFileAtomic } from '../write/atomic.js';
+import { type AtomicWriteOptions, type StagedFile, stageFile, writeFileAtomic } from '../write/atomic.js';
 
 /** Options of the Arrow writers. */
 export interface ArrowWriteOptions extends AtomicWriteOptions {
@@ -21,9 +23,14 @@ export interface ArrowWriteOptions extends AtomicWriteOptions {
   readonly metadata?: Readonly<Record<string, string>>;
 }
 
-function write(path: string, table: Table, options: ArrowWriteOptions): void {
+/** The IPC bytes of a table, with the options' metadata. */
+function ipcBytes(table: Table, options: ArrowWriteOptions): Uint8Array {
   if (options.metadata) for (const [k, v] of Object.entries(options.metadata)) table.schema.metadata.set(k, v);
-  const bytes = tableToIPC(table, options.format ?? 'file');
+  return tableToIPC(table, options.format ?? 'file');
+}
+
+function write(path: string, table: Table, options: ArrowWriteOptions): void {
+  const bytes = ipcBytes(table, options);
   writeFileAtomic(path, (append) => append(bytes), options);
 }
 
@@ -102,8 +109,30 @@ export function writeSymbolsArrowStreaming<T>(
   produce: (add: (symbols: DualPol) => void) => T,
   options: AtomicWriteOptions & { readonly format?: 'file' | 'stream' } = {},
 ): T {
+  const { staged, result } = stageSymbolsArrowStreaming(path, produce, options);
+  staged.commit();
+  return result;
+}
+
+/**
+ * {@link writeSymbolsArrowStreaming} without the last step: the complete
+ * file is left staged (see `stageFile`) for the caller to commit with its
+ * other outputs, or to discard.
+ * @throws as {@link writeSymbolsArrowStreaming}
+ * @example const { staged, result } = stageSymbolsArrowStreaming(path, produce); staged.commit();
+ */
+export function stageSymbolsArrowStreaming<T>(
+  path: string,
+  produce: (add: (symbols: DualPol) => void) => T,
+  options: AtomicWriteOptions & { readonly format?: 'file' | 'stream' } = {},
+): {
+  /** The complete file under its temporary name, to commit or discard. */
+  readonly staged: StagedFile;
+  /** What `produce` returned. */
+  readonly result: T;
+} {
   let result: T | undefined;
-  writeFileAtomic(
+  const staged = stageFile(
     path,
     (append) => {
       const writer = options.format === 'stream' ? new RecordBatchStreamWriter() : new RecordBatchFileWriter();
@@ -132,7 +161,7 @@ export function writeSymbolsArrowStreaming<T>(
     },
     options,
   );
-  return result as T;
+  return { staged, result: result as T };
 }
 
 /** apache-arrow's writer sink, appending each chunk to the file as it is written. */
@@ -150,54 +179,88 @@ class AppendingSink extends AsyncByteQueue {
 /** A row of a results table: named numbers, strings or missing values. */
 export type ResultRow = Readonly<Record<string, number | string | boolean | null | undefined>>;
 
+/** Options of {@link writeResultsArrow}. */
+export interface ResultsArrowOptions extends ArrowWriteOptions {
+  /**
+   * Columns of whole numbers (counts), written as Int64; each value must be
+   * a safe integer or missing. Other numeric columns are float64.
+   */
+  readonly integerColumns?: readonly string[];
+}
+
+/** The type of each column of a results table, by name. */
+export type ResultsColumnKind = 'text' | 'number' | 'integer' | 'boolean';
+
 /**
  * Writes a results table (one row per capture, say) as Arrow IPC, readable
  * by Python, R and SQL tools. Columns appear in the order their names are
  * first met; a column whose values are all numbers (or missing) is float64,
- * booleans become 0/1, strings make a UTF-8 column; a missing value is null.
- * Atomic.
- * @throws RangeError when a column mixes numbers and strings, or there is no row
+ * or Int64 when named in `integerColumns`; booleans make a Bool column,
+ * strings a UTF-8 column; a missing value is null. Atomic.
+ * @throws RangeError when a column mixes kinds, an integer column holds a
+ *   fraction, or there is no row
  * @example writeResultsArrow('results.arrow', [{ capture: 'run-07.csv', ber: 1.2e-3, ok: true }]);
  */
-export function writeResultsArrow(path: string, rows: readonly ResultRow[], options: ArrowWriteOptions = {}): void {
-  if (rows.length === 0) throw new RangeError('writeResultsArrow: expected at least one row');
+export function writeResultsArrow(path: string, rows: readonly ResultRow[], options: ResultsArrowOptions = {}): void {
+  const bytes = resultsArrowBytes(rows, options);
+  writeFileAtomic(path, (append) => append(bytes), options);
+}
+
+/**
+ * The Arrow IPC bytes {@link writeResultsArrow} writes, for a caller that
+ * stages several files together. With no row, `kinds` gives the schema.
+ * @throws RangeError as {@link writeResultsArrow} (with no row and no `kinds`)
+ * @example const bytes = resultsArrowBytes(rows, { integerColumns: ['bits'] });
+ */
+export function resultsArrowBytes(
+  rows: readonly ResultRow[],
+  options: ResultsArrowOptions & { readonly kinds?: Readonly<Record<string, ResultsColumnKind>> } = {},
+): Uint8Array {
+  if (rows.length === 0) {
+    if (!options.kinds) throw new RangeError('writeResultsArrow: expected at least one row');
+    const vectors: Record<string, Vector> = {};
+    for (const [name, kind] of Object.entries(options.kinds)) vectors[name] = vectorFromArray([], arrowType(kind));
+    return ipcBytes(new Table(vectors), options);
+  }
   const names: string[] = [];
   for (const r of rows) for (const k of Object.keys(r)) if (!names.includes(k)) names.push(k);
+  const integers = new Set(options.integerColumns ?? []);
   const columns: Record<string, Vector> = {};
   for (const name of names) {
     const values = rows.map((r) => r[name]);
     const present = values.filter((v) => v !== null && v !== undefined);
+    const missing = (v: unknown) => v === undefined || v === null;
     if (present.every((v) => typeof v === 'string')) {
       columns[name] = vectorFromArray(
-        values.map((v) => (v === undefined || v === null ? null : (v as string))),
+        values.map((v) => (missing(v) ? null : (v as string))),
         new Utf8(),
       );
-    } else if (present.every((v) => typeof v === 'number' || typeof v === 'boolean')) {
+    } else if (present.every((v) => typeof v === 'boolean')) {
       columns[name] = vectorFromArray(
-        values.map((v) => (v === undefined || v === null ? null : Number(v))),
-        new Float64(),
+        values.map((v) => (missing(v) ? null : (v as boolean))),
+        new Bool(),
       );
+    } else if (present.every((v) => typeof v === 'number')) {
+      if (integers.has(name)) {
+        const bad = present.find((v) => !Number.isSafeInteger(v));
+        if (bad !== undefined)
+          throw new RangeError(`writeResultsArrow: column '${name}' expected whole numbers, received ${bad}`);
+        columns[name] = vectorFromArray(
+          values.map((v) => (missing(v) ? null : BigInt(v as number))),
+          new Int64(),
+        );
+      } else
+        columns[name] = vectorFromArray(
+          values.map((v) => (missing(v) ? null : (v as number))),
+          new Float64(),
+        );
     } else {
-      throw new RangeError(`writeResultsArrow: column '${name}' expected numbers or strings, received a mix`);
+      throw new RangeError(`writeResultsArrow: column '${name}' expected numbers, booleans or strings, received a mix`);
     }
   }
-  write(path, new Table(columns), options);
+  return ipcBytes(new Table(columns), options);
 }
 
-/**
- * Writes a results table with no rows as Arrow IPC: the columns in the order
- * given, each UTF-8 ('text') or float64 ('number'), so that a reader sees the
- * schema of an empty result. Atomic.
- * @throws OutputExistsError as {@link writeCaptureArrow}
- */
-export function writeEmptyResultsArrow(
-  path: string,
-  columns: Readonly<Record<string, 'text' | 'number'>>,
-  options: ArrowWriteOptions = {},
-): void {
-  const vectors: Record<string, Vector> = {};
-  for (const [name, kind] of Object.entries(columns))
-    vectors[name] =
-      kind === 'text' ? vectorFromArray([] as string[], new Utf8()) : vectorFromArray([] as number[], new Float64());
-  write(path, new Table(vectors), options);
+function arrowType(kind: ResultsColumnKind) {
+  return kind === 'text' ? new Utf8() : kind === 'boolean' ? new Bool() : kind === 'integer' ? new Int64() : new Float64();
 }

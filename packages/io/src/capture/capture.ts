@@ -1,12 +1,33 @@
-import { existsSync, readdirSync, readFileSync } from 'node:fs';
+import { type Dirent, existsSync, readdirSync, realpathSync, statSync } from 'node:fs';
 import { basename, dirname, extname, join, resolve } from 'node:path';
 import { type ChannelBlock, constellation, type DualPol, type ModulationName } from '@intradyne/core';
-import { loadReferenceArrow, readArrowCapture, readArrowCaptureAsync, readArrowMetadata } from '../arrow/arrow-capture.js';
-import { InputError } from '../errors/input-error.js';
+import {
+  arrowStreamComplete,
+  loadReferenceArrow,
+  readArrowCapture,
+  readArrowCaptureAsync,
+  readArrowMetadata,
+} from '../arrow/arrow-capture.js';
+import { inputFailure } from '../errors/file-system.js';
+import { InputError, type InputLocation } from '../errors/input-error.js';
 import { type CsvCaptureOptions, readCsvCapture, readCsvCaptureAsync } from '../load/csv-capture.js';
+import { readInputText } from '../load/open-file.js';
 import { type CaptureDescriptor, DESCRIPTOR_FIELDS, type FieldValue, parseDescriptor, validateDescriptor } from './descriptor.js';
 import { parseJsonWithPositions, plainJson } from './json-positions.js';
+import { rateProblem } from './limits.js';
 import { checkReferenceConstellation, loadReferenceCsv } from './reference.js';
+
+/**
+ * The command-line option of each descriptor field that an option can
+ * override: a bad value given there is blamed on the option, not on the file.
+ */
+export const OVERRIDE_OPTIONS: Readonly<Record<string, string>> = {
+  sampleRate: '--sample-rate',
+  symbolRate: '--symbol-rate',
+  modulation: '--modulation',
+  rollOff: '--roll-off',
+  dispersionPsPerNm: '--dispersion',
+};
 
 /** Data file formats, by extension: `.csv`; `.arrow` (IPC file) and `.arrows` (IPC stream). */
 export const DATA_EXTENSIONS: Readonly<Record<string, 'csv' | 'arrow'>> = {
@@ -46,6 +67,18 @@ export interface CaptureDescription {
   readonly referencePath: string;
   /** Transmitted symbols, as written (any scale), at least 32. */
   readonly reference: DualPol;
+  /** What was noticed while opening that does not stop an analysis (an Arrow stream without its end marker…). */
+  readonly warnings: readonly string[];
+  /**
+   * Where a descriptor field's value came from: its place in the descriptor
+   * (line and column when known) or the option that overrode it.
+   */
+  origin(field: string):
+    | InputLocation
+    | {
+        /** The option that gave the value, e.g. '--symbol-rate'. */
+        readonly option: string;
+      };
   /** Streams the capture in blocks (bounded memory); `blockSize` applies to CSV (Arrow yields one block per batch). */
   blocks(options?: { readonly blockSize?: number }): Generator<ChannelBlock, void, undefined>;
   /** The asynchronous form of `blocks`. */
@@ -92,7 +125,12 @@ export function resolveDataPath(path: string): string {
       `a '${ext}' file`,
     );
   }
-  if (!existsSync(path)) throw new InputError({ file: path }, 'capture', 'an existing file', 'no such file');
+  try {
+    statSync(path);
+  } catch (e) {
+    // Missing, a broken link, a loop of links, a path through a file: the system says which.
+    throw inputFailure(e, path, 'capture', 'an existing file');
+  }
   return path;
 }
 
@@ -134,7 +172,7 @@ export function openCapture(path: string, overrides: Readonly<Record<string, unk
   const fields = format === 'arrow' ? metadataFields(readArrowMetadata(dataPath)) : new Map<string, FieldValue>();
   const descriptorFile = hasSidecar ? sidecar : dataPath;
   if (hasSidecar) {
-    const text = readFileSync(sidecar, 'utf8');
+    const text = readInputText(sidecar, 'descriptor');
     // Validate the sidecar alone first, so that its messages carry its lines and columns.
     const root = parseJsonWithPositions(text, sidecar);
     // A root that is not an object: parseDescriptor reports it.
@@ -149,7 +187,8 @@ export function openCapture(path: string, overrides: Readonly<Record<string, unk
       'none',
     );
   }
-  for (const [k, v] of Object.entries(overrides)) if (v !== undefined) fields.set(k, { value: v });
+  for (const [k, v] of Object.entries(overrides))
+    if (v !== undefined) fields.set(k, { value: v, option: OVERRIDE_OPTIONS[k] ?? `the override '${k}'` });
   const d = validateDescriptor(fields, descriptorFile);
   let sampleRate = d.sampleRate;
   if (sampleRate === undefined) {
@@ -165,14 +204,9 @@ export function openCapture(path: string, overrides: Readonly<Record<string, unk
         'nothing (the field is missing)',
       );
     }
-    if (sampleRate < d.symbolRate) {
-      throw new InputError(
-        { file: dataPath },
-        'time column',
-        `a sample rate of at least the symbol rate (${d.symbolRate} Bd)`,
-        `${sampleRate} Sa/s`,
-      );
-    }
+    const problem = rateProblem(sampleRate, d.symbolRate);
+    if (problem !== null)
+      throw new InputError({ file: dataPath }, 'time column', `a sample rate ${problem}`, `${sampleRate} Sa/s`);
   }
   const referencePath = resolve(dirname(descriptorFile), d.reference);
   const reference = loadReference(referencePath, descriptorFile, d.reference);
@@ -187,6 +221,16 @@ export function openCapture(path: string, overrides: Readonly<Record<string, unk
   });
   const arrowColumns = d.columns ? Object.fromEntries(Object.entries(d.columns).filter(([k]) => k !== 't')) : undefined;
   const arrowOptions = { columns: arrowColumns, sampleRate: rate, samplesPerSymbol };
+  const warnings: string[] = [];
+  if (format === 'arrow' && !arrowStreamComplete(dataPath))
+    warnings.push(
+      `${dataPath}: the Arrow IPC stream has no end-of-stream marker: it may have been cut short between two record batches (the analysis uses the batches present)`,
+    );
+  const origin = (field: string): InputLocation | { readonly option: string } => {
+    const f = fields.get(field);
+    if (f?.option !== undefined) return { option: f.option };
+    return f?.line !== undefined ? { file: descriptorFile, line: f.line, column: f.column } : { file: descriptorFile };
+  };
   return {
     name: basename(dataPath, extname(dataPath)),
     dataPath,
@@ -201,6 +245,8 @@ export function openCapture(path: string, overrides: Readonly<Record<string, unk
     dispersionPsPerNm: d.dispersionPsPerNm,
     referencePath,
     reference,
+    warnings,
+    origin,
     blocks: (o) => (format === 'csv' ? readCsvCapture(dataPath, csvOptions(o)) : readArrowCapture(dataPath, arrowOptions)),
     blocksAsync: (o) =>
       format === 'csv' ? readCsvCaptureAsync(dataPath, csvOptions(o)) : readArrowCaptureAsync(dataPath, arrowOptions),
@@ -213,6 +259,7 @@ export function openCapture(path: string, overrides: Readonly<Record<string, unk
  * @example const ref = loadReference('tx-symbols.csv', 'lab/run-07.json'); // CSV or Arrow, checked
  */
 export function loadReference(path: string, descriptorFile: string, written = path): DualPol {
+  // A broken symbolic link does not exist either.
   if (!existsSync(path)) {
     throw new InputError(
       { file: descriptorFile },
@@ -231,20 +278,45 @@ export function loadReference(path: string, descriptorFile: string, written = pa
  * The captures of a folder and its subfolders: every data file (`.csv`,
  * `.arrow`, `.arrows`) with a same-named `.json` beside it, and nothing else
  * (a reference file has no descriptor). Names starting with '.' are skipped
- * (temporary files of atomic writes, hidden folders).
+ * (temporary files of atomic writes, hidden folders). Symbolic links are
+ * followed, to files and to folders (a folder reached twice, through a link
+ * loop or two links, is walked once); a data file that is not a regular
+ * file (a FIFO, a broken link) is listed all the same, so that the analysis
+ * reports it instead of the sweep skipping it silently.
  * @returns data file paths, sorted
+ * @throws InputError when a folder cannot be read (no permission…)
  * @example listCaptures('osnr-sweep') // ['osnr-sweep/a/run-01.csv', 'osnr-sweep/run-02.arrow', …]
  */
 export function listCaptures(dir: string): string[] {
   const found: string[] = [];
+  const walked = new Set<string>();
   const walk = (d: string) => {
-    const entries = readdirSync(d, { withFileTypes: true });
-    const names = new Set(entries.filter((e) => e.isFile()).map((e) => e.name));
+    let real: string;
+    let entries: Dirent[];
+    try {
+      real = realpathSync(d);
+      if (walked.has(real)) return;
+      walked.add(real);
+      entries = readdirSync(d, { withFileTypes: true });
+    } catch (e) {
+      throw inputFailure(e, d, 'folder', 'a readable folder');
+    }
+    const folder = (p: string, isLink: boolean, isDir: boolean) => {
+      if (!isLink) return isDir;
+      try {
+        return statSync(p).isDirectory();
+      } catch {
+        return false; // a broken link: a file name like any other
+      }
+    };
+    const names = new Set(
+      entries.filter((e) => !folder(join(d, e.name), e.isSymbolicLink(), e.isDirectory())).map((e) => e.name),
+    );
     for (const e of entries) {
       if (e.name.startsWith('.')) continue;
       const p = join(d, e.name);
-      if (e.isDirectory()) walk(p);
-      else if (e.isFile() && extname(e.name).toLowerCase() in DATA_EXTENSIONS) {
+      if (folder(p, e.isSymbolicLink(), e.isDirectory())) walk(p);
+      else if (extname(e.name).toLowerCase() in DATA_EXTENSIONS) {
         if (names.has(`${basename(e.name, extname(e.name))}.json`)) found.push(p);
       }
     }

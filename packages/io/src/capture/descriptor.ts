@@ -1,8 +1,10 @@
-import { readFileSync } from 'node:fs';
 import { MODULATIONS, type ModulationName } from '@intradyne/core';
 import { InputError, quoteText } from '../errors/input-error.js';
+import { UsageError } from '../errors/usage-error.js';
 import type { CaptureColumn } from '../load/csv-capture.js';
+import { readInputText } from '../load/open-file.js';
 import { parseJsonWithPositions, plainJson } from './json-positions.js';
+import { LIMITS, maxDispersionPsPerNm, rateProblem } from './limits.js';
 
 /**
  * A capture's descriptor: the sidecar `<capture-name>.json` beside the data
@@ -24,6 +26,9 @@ import { parseJsonWithPositions, plainJson } from './json-positions.js';
  * - `simulation`: what `intradyne simulate` records (any value; accepted
  *   and ignored).
  * Any other field is refused, so that a misspelt name does not pass silently.
+ * The rates and the dispersion are bounded (see `LIMITS`): the sample rate
+ * at most 10 TSa/s and 256 samples per symbol, the dispersion at most what
+ * a compensation filter of 2^18 taps removes.
  */
 export interface CaptureDescriptor {
   /** Scope sample rate, Sa/s (may be inferred from a time column). */
@@ -66,11 +71,16 @@ export const DESCRIPTOR_FIELDS = [
   'simulation',
 ] as const;
 
-/** A field value with where it was written (line and column when from JSON text). */
+/** A field value with where it was written (line and column when from JSON text, or the option that gave it). */
 export interface FieldValue {
+  /** The value, as parsed. */
   readonly value: unknown;
+  /** 1-based line in the descriptor. */
   readonly line?: number;
+  /** 1-based column in the descriptor. */
   readonly column?: number;
+  /** The command-line option (or override) that gave the value instead of the file, e.g. '--sample-rate'. */
+  readonly option?: string;
 }
 
 const COLUMN_KEYS: readonly CaptureColumn[] = ['xi', 'xq', 'yi', 'yq', 't'];
@@ -99,13 +109,7 @@ export function parseDescriptor(text: string, file: string): CaptureDescriptor {
  * @example const d = readDescriptor('lab/run-07.json'); d.symbolRate;
  */
 export function readDescriptor(path: string): CaptureDescriptor {
-  let text: string;
-  try {
-    text = readFileSync(path, 'utf8');
-  } catch (e) {
-    throw new InputError({ file: path }, 'descriptor', 'a readable file', (e as NodeJS.ErrnoException).code ?? String(e));
-  }
-  return parseDescriptor(text, path);
+  return parseDescriptor(readInputText(path, 'descriptor'), path);
 }
 
 function describe(v: unknown): string {
@@ -119,8 +123,10 @@ function describe(v: unknown): string {
 
 /**
  * Validates descriptor fields gathered from any source (JSON text, Arrow
- * schema metadata). `at` locates the whole descriptor for missing fields.
- * @throws InputError as {@link parseDescriptor}
+ * schema metadata, command-line overrides). `at` locates the whole
+ * descriptor for missing fields.
+ * @throws InputError as {@link parseDescriptor}; UsageError naming the
+ *   option when the bad value came from one (a field with `option` set)
  */
 export function validateDescriptor(
   fields: ReadonlyMap<string, FieldValue>,
@@ -132,7 +138,9 @@ export function validateDescriptor(
     return f?.line !== undefined ? { file, line: f.line, column: f.column } : { file, ...at };
   };
   const fail = (name: string, expected: string): never => {
-    throw new InputError(where(name), `field '${name}'`, expected, describe(fields.get(name)?.value));
+    const f = fields.get(name);
+    if (f?.option !== undefined) throw new UsageError(`${f.option}: expected ${expected}, received ${describe(f.value)}`);
+    throw new InputError(where(name), `field '${name}'`, expected, describe(f?.value));
   };
   for (const [name, f] of fields) {
     if (!(DESCRIPTOR_FIELDS as readonly string[]).includes(name)) {
@@ -153,6 +161,8 @@ export function validateDescriptor(
   };
   const sampleRate = positive('sampleRate', 'Sa/s', false);
   const symbolRate = positive('symbolRate', 'Bd', true) as number;
+  if (sampleRate !== undefined && sampleRate > LIMITS.maxSampleRate) fail('sampleRate', `at most ${LIMITS.maxSampleRate} Sa/s`);
+  if (symbolRate > LIMITS.maxSampleRate) fail('symbolRate', `at most ${LIMITS.maxSampleRate} Bd`);
   const m = value('modulation');
   const modulation =
     typeof m === 'string' && (MODULATIONS as readonly string[]).includes(m.toLowerCase())
@@ -169,6 +179,12 @@ export function validateDescriptor(
   }
   const d = value('dispersionPsPerNm');
   if (d !== undefined && (typeof d !== 'number' || !Number.isFinite(d))) fail('dispersionPsPerNm', 'a finite number of ps/nm');
+  const dMax = maxDispersionPsPerNm(symbolRate);
+  if (typeof d === 'number' && Math.abs(d) > dMax)
+    fail(
+      'dispersionPsPerNm',
+      `at most ±${dMax} ps/nm at ${symbolRate} Bd (a compensation filter of at most ${LIMITS.maxDispersionTaps} taps)`,
+    );
   const sk = value('skewPs');
   if (sk !== undefined) {
     if (typeof sk !== 'object' || sk === null || Array.isArray(sk))
@@ -199,11 +215,31 @@ export function validateDescriptor(
       }
     }
     columns = c as Partial<Record<CaptureColumn, string>>;
+    // Two channels read from one column would make a capture no receiver can separate.
+    const byName = new Map<string, string>();
+    for (const [k, v] of Object.entries(columns)) {
+      const first = byName.get((v as string).toLowerCase());
+      if (first !== undefined)
+        throw new InputError(
+          where('columns'),
+          "field 'columns'",
+          'a different column for each channel (and the time)',
+          `${first} and ${k} both mapped to ${quoteText(v as string)}`,
+        );
+      byName.set((v as string).toLowerCase(), k);
+    }
   }
   const n = value('notes');
   if (n !== undefined && typeof n !== 'string') fail('notes', 'a string');
-  if (sampleRate !== undefined && sampleRate < symbolRate) {
-    fail('sampleRate', `at least the symbol rate (${symbolRate} Bd) in Sa/s`);
+  if (sampleRate !== undefined) {
+    const problem = rateProblem(sampleRate, symbolRate);
+    // A relation between two fields: blame the symbol rate only when it alone came from the command line.
+    if (problem !== null && fields.get('sampleRate')?.option === undefined && fields.get('symbolRate')?.option !== undefined)
+      fail(
+        'symbolRate',
+        `a symbol rate the sample rate of ${file} (${sampleRate} Sa/s) can carry: the sample rate must be ${problem}`,
+      );
+    if (problem !== null) fail('sampleRate', problem);
   }
   return {
     ...(sampleRate !== undefined ? { sampleRate } : {}),

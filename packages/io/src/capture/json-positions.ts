@@ -83,6 +83,18 @@ export function parseJsonWithPositions(text: string, file: string): PositionedJs
   return v;
 }
 
+/**
+ * Parses a JSON document read from a file, as `JSON.parse` does, but with
+ * the guards and messages of {@link parseJsonWithPositions}: a syntax error
+ * names the line and column in one short line (JSON.parse quotes the text
+ * around it, line breaks included), deep nesting is refused.
+ * @throws InputError naming the file, line and column
+ * @example parseJsonFile('{"receiver": {}}', 'pipeline.json') // { receiver: {} }
+ */
+export function parseJsonFile(text: string, file: string): unknown {
+  return plainJson(parseJsonWithPositions(text, file));
+}
+
 /** Converts a positioned value back to plain JSON. */
 export function plainJson(v: PositionedJson): unknown {
   switch (v.kind) {

@@ -1,8 +1,9 @@
-import { closeSync, readSync } from 'node:fs';
+import { closeSync } from 'node:fs';
 import { type ComplexArray, type Constellation, complexArray, type DualPol } from '@intradyne/core';
-import { InputError } from '../errors/input-error.js';
-import { BufferFeeder, type HeaderCell, NumericCsvTable, type TableBlock } from '../load/csv-table.js';
-import { openForReading } from '../load/open-file.js';
+import { InputError, withLinkTarget } from '../errors/input-error.js';
+import { BufferFeeder, type HeaderCell, listColumns, NumericCsvTable, type TableBlock } from '../load/csv-table.js';
+import { linkTarget, openInput, readInput } from '../load/open-file.js';
+import { LIMITS } from './limits.js';
 
 /** Reference column names, in slot order. */
 export const REFERENCE_COLUMNS = ['x_re', 'x_im', 'y_re', 'y_im'] as const;
@@ -36,7 +37,7 @@ export function referenceResolver(file: string) {
           { file, line, column: 1 },
           'header',
           `the reference columns ${REFERENCE_COLUMNS.join(',')} (a column named '${name}')`,
-          `the columns ${cells.map((c) => JSON.stringify(c.name)).join(', ')}`,
+          listColumns(cells),
         );
       }
       if (hits.length > 1) {
@@ -58,19 +59,35 @@ export function referenceResolver(file: string) {
  * (`#` comments allowed, other columns ignored), one row per transmitted
  * symbol, any scale.
  * @returns the symbols, interleaved complex, one array per polarization
- * @throws InputError for any problem of the file (as the capture loader), or
- *   fewer than {@link MIN_REFERENCE_SYMBOLS} rows
+ * @throws InputError for any problem of the file (as the capture loader),
+ *   fewer than {@link MIN_REFERENCE_SYMBOLS} rows, or more than
+ *   `LIMITS.maxReferenceSymbols`
  * @example const ref = loadReferenceCsv('tx-symbols.csv'); // header x_re,x_im,y_re,y_im
  */
 export function loadReferenceCsv(path: string): DualPol {
   const blocks: TableBlock[] = [];
-  const table = new NumericCsvTable(path, referenceResolver(path), (b) => blocks.push(b), { blockRows: 65536 });
+  let rows = 0;
+  const keep = (b: TableBlock) => {
+    rows += b.rows;
+    // Checked as the rows come, so that a huge file is refused before it fills the memory.
+    if (rows > LIMITS.maxReferenceSymbols)
+      throw new InputError(
+        { file: path, line: b.lines[b.rows - 1] },
+        'reference',
+        `at most ${LIMITS.maxReferenceSymbols} symbols`,
+        `more (${rows} rows so far)`,
+      );
+    blocks.push(b);
+  };
+  const table = new NumericCsvTable(path, referenceResolver(path), keep, { blockRows: 65536 });
   const feeder = new BufferFeeder(table, path);
-  const fd = openForReading(path);
+  const fd = openInput(path, 'reference');
   try {
-    while (feeder.feed(readSync(fd, feeder.buffer, feeder.offset, feeder.room, null))) {
+    while (feeder.feed(readInput(fd, path, 'reference', feeder.buffer, feeder.offset, feeder.room, null))) {
       // reading
     }
+  } catch (e) {
+    throw withLinkTarget(e, path, linkTarget(path));
   } finally {
     closeSync(fd);
   }

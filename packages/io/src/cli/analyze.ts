@@ -1,18 +1,26 @@
-import { mkdirSync } from 'node:fs';
 import { join } from 'node:path';
+import { MODULATIONS } from '@intradyne/core';
 import {
   type AnalysisSettings,
   analysisToJson,
-  analyzeFile,
   analyzeOpenCapture,
   type FileAnalysis,
+  presentedLinewidth,
   readPipelineFile,
 } from '../analysis/analyze-file.js';
-import { writeSymbolsArrowStreaming } from '../arrow/arrow-write.js';
+import { stageSymbolsArrowStreaming } from '../arrow/arrow-write.js';
 import { openCapture } from '../capture/capture.js';
+import { LIMITS, rateProblem } from '../capture/limits.js';
 import { analysisReport } from '../report/analysis-report.js';
-import { writeReport } from '../report/write-report.js';
-import { writeJsonAtomic } from '../write/csv.js';
+import { checkReportPath, stageReport } from '../report/write-report.js';
+import {
+  checkOutputFile,
+  checkOutputFolder,
+  commitTogether,
+  prepareOutputFolder,
+  type StagedFile,
+  stageFile,
+} from '../write/atomic.js';
 import { parseCommandArgs, positiveInteger, positiveNumber } from './args.js';
 import { table } from './demo.js';
 import { EXIT, UsageError } from './errors.js';
@@ -27,7 +35,7 @@ found (dispersion, clock, equalizer, frequency offset, slips).
 Options (each overrides the descriptor):
   --modulation M        qpsk, 16qam or 64qam
   --symbol-rate BD      symbol rate, Bd
-  --sample-rate SAS     scope sample rate, Sa/s
+  --sample-rate SAS     scope sample rate, Sa/s (at most 1e13, and 256 samples per symbol)
   --roll-off B          transmitter roll-off
   --dispersion PSNM     accumulated dispersion to remove, ps/nm
   --no-blind-dispersion remove no dispersion when none is stated (default: estimate it)
@@ -36,29 +44,58 @@ Options (each overrides the descriptor):
                         pass has aligned them (the best case to compare blind DSP with)
   --pipeline FILE       JSON with "receiver" (stage options) and "analysis" settings
   --out DIR             also write <name>.analysis.json and <name>.symbols.arrow there
+                        (created when missing; the two files are written both or neither)
   --report FILE         also write a self-contained HTML report there (constellation,
-                        equalizer, carrier phase, input spectrum, every figure)
+                        equalizer, carrier phase, input spectrum, every figure); its
+                        folder must exist
   --json                print one JSON object on stdout
   -h, --help            this text
 
 Exit codes: 0 done, 1 the analysis failed (the reason is printed), 2 bad usage or input.
 `;
 
-/** Parses the options that override a descriptor or configure the receiver (shared with sweep). */
+/**
+ * Parses the options that override a descriptor or configure the receiver
+ * (shared with sweep), each checked on its own here (a value that does not
+ * fit a capture's descriptor is named when the capture is opened).
+ * @throws UsageError naming the option, what was expected and what was received
+ */
 export function analysisSettingsFrom(command: string, values: Record<string, string | boolean | undefined>): AnalysisSettings {
   const modulation = values.modulation as string | undefined;
+  if (modulation !== undefined && !(MODULATIONS as readonly string[]).includes(modulation.toLowerCase()))
+    throw new UsageError(
+      `intradyne ${command}: --modulation expected one of ${MODULATIONS.join(', ')}, received '${modulation}'`,
+    );
   const dispersion = values.dispersion as string | undefined;
   let dispersionPsPerNm: number | undefined;
   if (dispersion !== undefined) {
     dispersionPsPerNm = Number(dispersion);
-    if (!Number.isFinite(dispersionPsPerNm))
+    if (dispersion.trim() === '' || !Number.isFinite(dispersionPsPerNm))
       throw new UsageError(`intradyne ${command}: --dispersion expected a number of ps/nm, received '${dispersion}'`);
   }
   const rollOff = positiveNumber(command, 'roll-off', values['roll-off'] as string | undefined);
+  if (rollOff !== undefined && rollOff > 1)
+    throw new UsageError(`intradyne ${command}: --roll-off expected a roll-off in (0, 1], received '${values['roll-off']}'`);
+  const symbolRate = positiveNumber(command, 'symbol-rate', values['symbol-rate'] as string | undefined);
+  const sampleRate = positiveNumber(command, 'sample-rate', values['sample-rate'] as string | undefined);
+  for (const [option, v] of [
+    ['symbol-rate', symbolRate],
+    ['sample-rate', sampleRate],
+  ] as const) {
+    if (v !== undefined && v > LIMITS.maxSampleRate)
+      throw new UsageError(
+        `intradyne ${command}: --${option} expected at most ${LIMITS.maxSampleRate}, received '${values[option]}'`,
+      );
+  }
+  if (sampleRate !== undefined && symbolRate !== undefined) {
+    const problem = rateProblem(sampleRate, symbolRate);
+    if (problem !== null)
+      throw new UsageError(`intradyne ${command}: --sample-rate expected ${problem}, received '${values['sample-rate']}'`);
+  }
   const overrides: Record<string, unknown> = {
     modulation,
-    symbolRate: positiveNumber(command, 'symbol-rate', values['symbol-rate'] as string | undefined),
-    sampleRate: positiveNumber(command, 'sample-rate', values['sample-rate'] as string | undefined),
+    symbolRate,
+    sampleRate,
     rollOff,
     dispersionPsPerNm,
   };
@@ -101,36 +138,57 @@ export function analyzeCommand(argv: readonly string[], out: (s: string) => void
   }
   if (positionals.length !== 1) throw new UsageError("intradyne analyze: expected one CAPTURE (see 'intradyne analyze --help')");
   const settings = analysisSettingsFrom('analyze', values);
-  err(`analyzing ${positionals[0]}\n`);
   const dir = values.out as string | undefined;
+  const reportPath = values.report as string | undefined;
+  // The output paths are checked before the analysis, so that a mistyped path costs nothing.
+  if (dir !== undefined) checkOutputFolder(dir);
+  if (reportPath !== undefined) checkOutputFile(reportPath, 'report', { overwrite: true });
+  err(`analyzing ${positionals[0]}\n`);
   const analysisSettings = {
     ...settings,
-    analysis: { ...settings.analysis, plotData: values.report !== undefined },
+    analysis: { ...settings.analysis, plotData: reportPath !== undefined },
   };
+  const capture = openCapture(positionals[0], settings.overrides ?? {});
+  const inputs = [capture.dataPath, capture.referencePath, ...(capture.descriptorPath ? [capture.descriptorPath] : [])];
+  if (reportPath !== undefined) checkReportPath(reportPath, inputs);
+  if (dir !== undefined) prepareOutputFolder(dir);
+  const staged: StagedFile[] = [];
   let analysis: FileAnalysis;
-  if (dir === undefined) analysis = analyzeFile(positionals[0], analysisSettings);
-  else {
-    // The recovered symbols go to the file as the chain delivers them: memory stays flat with the capture.
-    const capture = openCapture(positionals[0], settings.overrides ?? {});
-    mkdirSync(dir, { recursive: true });
-    analysis = writeSymbolsArrowStreaming(
-      join(dir, `${capture.name}.symbols.arrow`),
-      (add) =>
-        analyzeOpenCapture(capture, {
-          ...analysisSettings,
-          analysis: { ...analysisSettings.analysis, onSymbols: add },
-        }),
-      { overwrite: true },
-    );
+  let json: Record<string, unknown>;
+  try {
+    if (dir === undefined) analysis = analyzeOpenCapture(capture, analysisSettings);
+    else {
+      // The recovered symbols go to a staged file as the chain delivers them: memory stays flat with the capture.
+      const symbols = stageSymbolsArrowStreaming(
+        join(dir, `${capture.name}.symbols.arrow`),
+        (add) =>
+          analyzeOpenCapture(capture, {
+            ...analysisSettings,
+            analysis: { ...analysisSettings.analysis, onSymbols: add },
+          }),
+        { overwrite: true },
+      );
+      staged.push(symbols.staged);
+      analysis = symbols.result;
+    }
+    json = analysisToJson(analysis);
+    // Every output is complete on disk before any is put in place: all of them or none.
+    const jsonText = `${JSON.stringify(json, null, 2)}\n`;
+    const html = reportPath !== undefined ? analysisReport(analysis) : undefined;
+    commitTogether([
+      ...staged.map((s) => () => s),
+      ...(dir !== undefined
+        ? [() => stageFile(join(dir, `${capture.name}.analysis.json`), (append) => append(jsonText), { overwrite: true })]
+        : []),
+      ...(reportPath !== undefined && html !== undefined ? [() => stageReport(reportPath, html, inputs)] : []),
+    ]);
+  } catch (e) {
+    // Whatever failed, no temporary file stays behind (a committed file is not touched).
+    for (const s of staged) s.discard();
+    throw e;
   }
-  const json = analysisToJson(analysis);
-  if (dir !== undefined) writeJsonAtomic(join(dir, `${analysis.capture.name}.analysis.json`), json, { overwrite: true });
-  if (values.report) {
-    const c = analysis.capture;
-    const inputs = [c.dataPath, c.referencePath, ...(c.descriptorPath ? [c.descriptorPath] : [])];
-    writeReport(values.report as string, analysisReport(analysis), inputs);
-    err(`report: ${values.report}\n`);
-  }
+  for (const w of capture.warnings) err(`warning: ${w}\n`);
+  if (reportPath !== undefined) err(`report: ${reportPath}\n`);
   if (values.json) out(`${JSON.stringify(json)}\n`);
   else out(summary(analysis));
   if (!analysis.result.ok) {
@@ -155,14 +213,15 @@ export function summary({ capture, result }: FileAnalysis): string {
     return `${lines.join('\n')}\n`;
   }
   const m = result.measurement!;
+  // A BER without errors is the upper end of its interval, and Q from it a lower bound: marked so.
   const row = (label: string, f: typeof m | typeof m.perPol.x) => [
     label,
-    `${fmt(f.ber)}${f.berIsUpperBound ? ' (bound)' : ''}`,
+    `${f.berIsUpperBound ? '< ' : ''}${fmt(f.ber)}`,
     `${fmt(f.berCi95[0])} – ${fmt(f.berCi95[1])}`,
     `${f.bitErrors}/${f.bits}`,
     fmt(100 * f.evmRms, 2),
     fmt(f.snrDb, 2),
-    fmt(f.qDb, 2),
+    `${f.berIsUpperBound && f.qDb !== null ? '> ' : ''}${fmt(f.qDb, 2)}`,
     fmt(f.gmi, 3),
     fmt(f.ngmi, 4),
   ];
@@ -173,8 +232,13 @@ export function summary({ capture, result }: FileAnalysis): string {
     ).trimEnd(),
   );
   const cd = result.diagnostics.dispersion as { dispersionPsPerNm?: number; estimated?: boolean } | null;
+  const lw = presentedLinewidth(result.linewidthHz);
+  const linewidth = lw.linewidthBelowResolution
+    ? "linewidth below the estimate's resolution"
+    : `linewidth ${fmt(lw.linewidthHz === null ? null : lw.linewidthHz / 1e3, 0)} kHz`;
+  if (m.berIsUpperBound) lines.push('no bit error counted: "<" marks the upper end of the 95 % interval, ">" the Q from it');
   lines.push(
-    `frequency offset ${fmt(result.freqOffsetHz / 1e6, 1)} MHz, linewidth ${fmt(result.linewidthHz / 1e3, 0)} kHz, ` +
+    `frequency offset ${fmt(result.freqOffsetHz / 1e6, 1)} MHz, ${linewidth}, ` +
       `cycle slips ${result.cycleSlips.count}, dispersion ${fmt(cd?.dispersionPsPerNm, 0)} ps/nm${cd?.estimated ? ' (estimated)' : ''}, ` +
       `penalty against theory ${fmt(result.implementationPenaltyDb, 2)} dB`,
   );

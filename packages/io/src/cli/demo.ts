@@ -2,6 +2,7 @@ import { mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { analyzeFile } from '../analysis/analyze-file.js';
+import { outputFailure } from '../errors/file-system.js';
 import { runScenario } from '../scenarios/run.js';
 import { builtInScenario } from '../scenarios/scenario.js';
 import { parseCommandArgs } from './args.js';
@@ -25,7 +26,12 @@ export function demoCommand(argv: readonly string[], out: (s: string) => void, e
   }
   const scenario = builtInScenario('demo');
   if (!scenario) throw new Error('the built-in demo scenario is missing');
-  const dir = mkdtempSync(join(tmpdir(), 'intradyne-demo-'));
+  let dir: string;
+  try {
+    dir = mkdtempSync(join(tmpdir(), 'intradyne-demo-'));
+  } catch (e) {
+    throw outputFailure(e, tmpdir(), 'temporary folder', 'a writable folder for the demo (set TMPDIR to another)');
+  }
   let failed = 0;
   try {
     out(`${scenario.description}\n\n`);

@@ -1,7 +1,4 @@
-/** Bad usage or bad input: the command exits with code 2. */
-export class UsageError extends Error {
-  override readonly name = 'UsageError';
-}
+export { UsageError } from '../errors/usage-error.js';
 
 /** Exit codes of the intradyne command. */
 export const EXIT = { done: 0, analysisFailed: 1, badInput: 2 } as const;

@@ -1,16 +1,10 @@
 import { existsSync } from 'node:fs';
 import { extname } from 'node:path';
-import {
-  CHANNEL_NAMES,
-  type ChannelBlock,
-  type ChannelName,
-  fromParts,
-  type SpectrumSummary,
-  summarizeSpectrum,
-  WelchEstimator,
-} from '@intradyne/core';
+import { CHANNEL_NAMES, type ChannelBlock, type ChannelName, type SpectrumSummary } from '@intradyne/core';
+import { MIN_SPECTRUM_SAMPLES, SpectrumAccumulator } from '../analysis/spectrum-estimate.js';
 import { readArrowCapture } from '../arrow/arrow-capture.js';
 import { descriptorPathFor, openCapture, resolveDataPath } from '../capture/capture.js';
+import { LIMITS } from '../capture/limits.js';
 import { InputError } from '../errors/input-error.js';
 import { readCsvCapture } from '../load/csv-capture.js';
 import { parseCommandArgs, positiveInteger, positiveNumber } from './args.js';
@@ -31,7 +25,8 @@ The symbol rate is the signal power above the noise floor divided by the
 in-band plateau level: for a raised-cosine spectrum that ratio is the symbol
 rate whatever the roll-off (valid for roll-offs up to 0.5). The half-power
 (-3 dB) bandwidth, which is also the symbol rate for such a spectrum, is
-printed beside it.
+printed beside it. A spectrum with no band (all zeros, a constant level, a
+pure tone) gives no estimate, and the reason is printed instead.
 
 The descriptor, when present, gives the sample rate and is validated with its
 reference; without one, the sample rate comes from a time column or from
@@ -39,7 +34,7 @@ reference; without one, the sample rate comes from a time column or from
 
 Options:
   --sample-rate SA/S   sample rate, overriding the descriptor
-  --segment N          Welch segment length (default 1024, fewer for short captures)
+  --segment N          Welch segment length, 8 to ${LIMITS.maxSegmentLength} (default 1024, fewer for short captures)
   --json               print one JSON object
   -h, --help           this text
 `;
@@ -127,8 +122,8 @@ export interface InspectReport {
   readonly durationS: number;
   /** DC, rms, extremes and clipping of each channel. */
   readonly channels: Readonly<Record<ChannelName, ChannelSummary>>;
-  /** Summary of the Welch power spectrum of x = xi + j·xq. */
-  readonly spectrum: SpectrumSummary & {
+  /** Summary of the Welch power spectrum of x = xi + j·xq and y; its figures are null when the spectrum holds no band. */
+  readonly spectrum: { readonly [K in keyof SpectrumSummary]: number | null } & {
     /** Samples per Welch segment. */
     readonly segmentLength: number;
     /** Segments averaged. */
@@ -138,13 +133,15 @@ export interface InspectReport {
   };
   /** The symbol rate seen in the spectrum, against the descriptor's. */
   readonly symbolRate: {
-    /** Estimated symbol rate, Bd. */
-    readonly estimateBd: number;
+    /** Estimated symbol rate, Bd, or null when the spectrum holds no band. */
+    readonly estimateBd: number | null;
+    /** Why there is no estimate (all zeros, a constant level, a tone), or null. */
+    readonly reason: string | null;
     /** How it was estimated, in words. */
     readonly method: string;
     /** The descriptor's symbol rate, Bd, or null without a descriptor. */
     readonly statedBd: number | null;
-    /** (estimate − stated) / stated, or null without a descriptor. */
+    /** (estimate − stated) / stated, or null without a descriptor or an estimate. */
     readonly relativeDifference: number | null;
   };
 }
@@ -171,49 +168,20 @@ export function inspectCapture(path: string, options: { sampleRate?: number; seg
         : readArrowCapture(dataPath, { sampleRate: options.sampleRate });
   }
   const stats = Object.fromEntries(CHANNEL_NAMES.map((c) => [c, newStats()])) as Record<ChannelName, ChannelStats>;
-  let welch: [WelchEstimator, WelchEstimator] | null = null;
+  const spectrum = new SpectrumAccumulator(options.segmentLength ?? 1024);
   let sampleRate = Number.NaN;
-  // Hold the first samples until the segment length is settled (short captures get shorter segments).
-  const head: ChannelBlock[] = [];
-  let headSamples = 0;
-  const want = options.segmentLength ?? 1024;
-  const feed = (b: ChannelBlock) => {
-    if (!welch) return;
-    welch[0].push(fromParts(b.xi, b.xq));
-    welch[1].push(fromParts(b.yi, b.yq));
-  };
   for (const b of blocks) {
     sampleRate = b.sampleRate;
     for (const c of CHANNEL_NAMES) accumulate(stats[c], b[c]);
-    if (welch) feed(b);
-    else {
-      head.push(b);
-      headSamples += b.xi.length;
-      if (headSamples >= 8 * want) {
-        welch = [
-          new WelchEstimator(sampleRate, { segmentLength: want }),
-          new WelchEstimator(sampleRate, { segmentLength: want }),
-        ];
-        for (const h of head.splice(0)) feed(h);
-      }
-    }
+    spectrum.push(b);
   }
   const samples = stats.xi.count;
-  if (!welch) {
-    // Fewer than 8 segments: shorten the segment to a power of two giving about 8.
-    let n = 8;
-    while (n * 2 * 8 <= samples && n * 2 <= want) n *= 2;
-    if (samples < 64) {
-      throw new InputError({ file: dataPath }, 'data', 'at least 64 samples for a spectrum', `${samples}`);
-    }
-    welch = [new WelchEstimator(sampleRate, { segmentLength: n }), new WelchEstimator(sampleRate, { segmentLength: n })];
-    for (const h of head.splice(0)) feed(h);
+  const s = spectrum.result();
+  if (s === null) {
+    throw new InputError({ file: dataPath }, 'data', `at least ${MIN_SPECTRUM_SAMPLES} samples for a spectrum`, `${samples}`);
   }
-  const px = welch[0].result();
-  const py = welch[1].result();
-  const psd = px.psd.map((v, i) => (v + py.psd[i]) / 2);
-  const spectrum = summarizeSpectrum({ ...px, psd, segments: px.segments + py.segments });
-  const estimate = spectrum.symbolRateBd;
+  const estimate = s.symbolRateBd;
+  const summary = s.summary ?? NO_SUMMARY;
   return {
     capture: dataPath,
     format,
@@ -222,17 +190,33 @@ export function inspectCapture(path: string, options: { sampleRate?: number; seg
     sampleRate,
     durationS: samples / sampleRate,
     channels: Object.fromEntries(CHANNEL_NAMES.map((c) => [c, summarize(stats[c])])) as Record<ChannelName, ChannelSummary>,
-    spectrum: { ...spectrum, segmentLength: px.psd.length, segments: px.segments + py.segments, resolutionHz: px.resolutionHz },
+    spectrum: { ...summary, segmentLength: s.segmentLength, segments: s.segments, resolutionHz: s.resolutionHz },
     symbolRate: {
       estimateBd: estimate,
+      reason: s.reason,
       method: 'power above the noise floor / in-band plateau level (raised-cosine area), Welch PSD of x and y',
       statedBd: stated,
-      relativeDifference: stated === null ? null : estimate / stated - 1,
+      relativeDifference: stated === null || estimate === null ? null : estimate / stated - 1,
     },
   };
 }
 
-const ghz = (v: number) => `${(v / 1e9).toFixed(3)} GHz`;
+/** The spectrum's figures when it holds no band to summarize. */
+const NO_SUMMARY: { readonly [K in keyof SpectrumSummary]: null } = {
+  noiseFloor: null,
+  plateau: null,
+  plateauToFloorDb: null,
+  halfPowerLowHz: null,
+  halfPowerHighHz: null,
+  bandwidth3dBHz: null,
+  centreHz: null,
+  occupiedLowHz: null,
+  occupiedHighHz: null,
+  occupiedBandwidthHz: null,
+  symbolRateBd: null,
+};
+
+const ghz = (v: number | null) => (v === null ? '–' : `${(v / 1e9).toFixed(3)} GHz`);
 const num = (v: number) => (Math.abs(v) >= 1e-3 || v === 0 ? v.toFixed(4) : v.toExponential(3));
 
 function text(r: InspectReport): string {
@@ -248,14 +232,20 @@ function text(r: InspectReport): string {
     }),
     '',
     `spectrum     Welch, ${r.spectrum.segmentLength}-point Hann segments, ${r.spectrum.segments} averaged, ${(r.spectrum.resolutionHz / 1e6).toFixed(1)} MHz bins`,
-    `  -3 dB band   ${ghz(r.spectrum.halfPowerLowHz)} to ${ghz(r.spectrum.halfPowerHighHz)} (width ${ghz(r.spectrum.bandwidth3dBHz)}, centre ${ghz(r.spectrum.centreHz)})`,
-    `  99 % band    ${ghz(r.spectrum.occupiedLowHz)} to ${ghz(r.spectrum.occupiedHighHz)} (width ${ghz(r.spectrum.occupiedBandwidthHz)}, power above the floor)`,
-    `  plateau/floor ${Number.isFinite(r.spectrum.plateauToFloorDb) ? `${r.spectrum.plateauToFloorDb.toFixed(1)} dB` : 'no out-of-band floor'}`,
-    `symbol rate  ${(r.symbolRate.estimateBd / 1e9).toFixed(3)} GBd estimated${
-      r.symbolRate.statedBd === null
-        ? ''
-        : ` (descriptor ${(r.symbolRate.statedBd / 1e9).toFixed(3)} GBd, ${(100 * (r.symbolRate.relativeDifference ?? 0)).toFixed(2)} %)`
-    }`,
+    ...(r.spectrum.bandwidth3dBHz === null
+      ? []
+      : [
+          `  -3 dB band   ${ghz(r.spectrum.halfPowerLowHz)} to ${ghz(r.spectrum.halfPowerHighHz)} (width ${ghz(r.spectrum.bandwidth3dBHz)}, centre ${ghz(r.spectrum.centreHz)})`,
+          `  99 % band    ${ghz(r.spectrum.occupiedLowHz)} to ${ghz(r.spectrum.occupiedHighHz)} (width ${ghz(r.spectrum.occupiedBandwidthHz)}, power above the floor)`,
+          `  plateau/floor ${r.spectrum.plateauToFloorDb !== null && Number.isFinite(r.spectrum.plateauToFloorDb) ? `${r.spectrum.plateauToFloorDb.toFixed(1)} dB` : 'no out-of-band floor'}`,
+        ]),
+    r.symbolRate.estimateBd === null
+      ? `symbol rate  not estimated: ${r.symbolRate.reason}`
+      : `symbol rate  ${(r.symbolRate.estimateBd / 1e9).toFixed(3)} GBd estimated${
+          r.symbolRate.statedBd === null
+            ? ''
+            : ` (descriptor ${(r.symbolRate.statedBd / 1e9).toFixed(3)} GBd, ${(100 * (r.symbolRate.relativeDifference ?? 0)).toFixed(2)} %)`
+        }`,
   ];
   return `${lines.join('\n')}\n`;
 }
@@ -272,10 +262,15 @@ export function inspectCommand(argv: readonly string[], out: (s: string) => void
   }
   if (positionals.length !== 1) throw new UsageError("intradyne inspect: expected one CAPTURE (see 'intradyne inspect --help')");
   const segment = positiveInteger('inspect', 'segment', values.segment as string | undefined);
-  if (segment !== undefined && segment < 8)
-    throw new UsageError(`intradyne inspect: --segment expected at least 8, received ${segment}`);
+  if (segment !== undefined && (segment < 8 || segment > LIMITS.maxSegmentLength))
+    throw new UsageError(`intradyne inspect: --segment expected 8 to ${LIMITS.maxSegmentLength}, received ${segment}`);
+  const sampleRate = positiveNumber('inspect', 'sample-rate', values['sample-rate'] as string | undefined);
+  if (sampleRate !== undefined && sampleRate > LIMITS.maxSampleRate)
+    throw new UsageError(
+      `intradyne inspect: --sample-rate expected at most ${LIMITS.maxSampleRate}, received '${values['sample-rate']}'`,
+    );
   const report = inspectCapture(positionals[0], {
-    sampleRate: positiveNumber('inspect', 'sample-rate', values['sample-rate'] as string | undefined),
+    sampleRate,
     segmentLength: segment,
   });
   out(values.json ? `${JSON.stringify(report)}\n` : text(report));

@@ -1,8 +1,9 @@
 #!/usr/bin/env node
 import { realpathSync } from 'node:fs';
 import { LIBRARY_VERSION, OptionError } from '@intradyne/core';
-import { InputError } from '../errors/input-error.js';
-import { OutputExistsError } from '../write/atomic.js';
+import { isSystemError, systemReason } from '../errors/file-system.js';
+import { InputError, printable } from '../errors/input-error.js';
+import { OutputError } from '../errors/output-error.js';
 import { ANALYZE_HELP, analyzeCommand } from './analyze.js';
 import { DEMO_HELP, demoCommand } from './demo.js';
 import { EXIT, UsageError } from './errors.js';
@@ -72,8 +73,14 @@ export function main(
     return EXIT.badInput;
   }
   const badInput = (e: unknown): number => {
-    if (e instanceof UsageError || e instanceof InputError || e instanceof OptionError || e instanceof OutputExistsError) {
-      err(`${e.message}\n`);
+    if (e instanceof UsageError || e instanceof InputError || e instanceof OptionError || e instanceof OutputError) {
+      err(`${printable(e.message)}\n`);
+      return EXIT.badInput;
+    }
+    // A failed system call that no reader or writer turned into a typed error: still a message naming the path.
+    if (isSystemError(e)) {
+      const path = (e as NodeJS.ErrnoException).path;
+      err(`${printable(path ?? 'intradyne')}: ${e.syscall ?? 'file system'}: ${systemReason(e)}\n`);
       return EXIT.badInput;
     }
     throw e;
@@ -90,6 +97,12 @@ export function main(
 // An installed bin is a symlink (node_modules/.bin/intradyne): compare its target.
 const invoked = process.argv[1] ? new URL(`file://${realPath(process.argv[1])}`).pathname : '';
 if (invoked && import.meta.url.endsWith(invoked.replace(/^.*\/dist\//, '/dist/'))) {
+  // A reader that stops early (\`intradyne … | head\`) closes the pipe: nothing more to say, and no stack trace.
+  for (const stream of [process.stdout, process.stderr])
+    stream.on('error', (e: NodeJS.ErrnoException) => {
+      if (e.code === 'EPIPE') process.exit(process.exitCode ?? 0);
+      throw e;
+    });
   const code = main(process.argv.slice(2));
   if (typeof code === 'number') process.exitCode = code;
   else

@@ -1,5 +1,8 @@
-import { existsSync, readFileSync } from 'node:fs';
+import { existsSync } from 'node:fs';
 import { OptionError } from '@intradyne/core';
+import { parseJsonFile } from '../capture/json-positions.js';
+import { LIMITS } from '../capture/limits.js';
+import { readInputText } from '../load/open-file.js';
 import { runScenario } from '../scenarios/run.js';
 import { BUILT_IN_SCENARIOS, builtInScenario, type Scenario } from '../scenarios/scenario.js';
 import { parseCommandArgs, positiveInteger } from './args.js';
@@ -16,7 +19,8 @@ ${BUILT_IN_SCENARIOS.map((s) => `  ${s.name.padEnd(12)} ${s.description}`).join(
 
 Options:
   --out DIR        folder to write into (created if missing)
-  --symbols N      symbols per capture, overriding the scenario
+  --symbols N      symbols per capture, overriding the scenario (at most
+                   ${LIMITS.maxSimulatedSamples} samples per channel in all)
   --overwrite      replace files that already exist (default: refuse)
   --json           print what was written as one JSON object
   -h, --help       this text
@@ -31,23 +35,28 @@ export function loadScenario(spec: string): Scenario {
       `intradyne simulate: '${spec}' is neither a built-in scenario (${BUILT_IN_SCENARIOS.map((s) => s.name).join(', ')}) nor a file`,
     );
   }
-  let doc: unknown;
-  try {
-    doc = JSON.parse(readFileSync(spec, 'utf8'));
-  } catch (e) {
-    throw new UsageError(`${spec}: not valid JSON (${(e as Error).message})`);
-  }
+  const doc = parseJsonFile(readInputText(spec, 'scenario'), spec);
   const s = doc as Partial<Scenario>;
   if (typeof s !== 'object' || s === null || typeof s.name !== 'string')
     throw new UsageError(`${spec}: expected an object with a string 'name'`);
+  if (s.base !== undefined && (typeof s.base !== 'object' || s.base === null || Array.isArray(s.base)))
+    throw new UsageError(`${spec}: expected 'base' to be an object of simulator options`);
   if (!Array.isArray(s.captures) || s.captures.length === 0)
     throw new UsageError(`${spec}: expected a non-empty array 'captures'`);
+  const files = new Set<string>();
   for (const [i, c] of s.captures.entries()) {
     if (typeof c?.name !== 'string' || !/^[A-Za-z0-9._-]+$/.test(c.name)) {
       throw new UsageError(
         `${spec}: captures[${i}].name expected letters, digits, '.', '_' or '-', received ${JSON.stringify(c?.name)}`,
       );
     }
+    // Each capture writes NAME.csv, NAME.json and NAME-reference.csv: no two captures may share one.
+    for (const f of [c.name, `${c.name}-reference`])
+      if (files.has(f))
+        throw new UsageError(
+          `${spec}: captures[${i}].name expected a name whose files no other capture writes, received '${c.name}'`,
+        );
+    files.add(c.name).add(`${c.name}-reference`);
   }
   return { description: '', base: {}, ...s } as Scenario;
 }

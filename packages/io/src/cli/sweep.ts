@@ -1,14 +1,15 @@
-import { existsSync, mkdirSync } from 'node:fs';
+import { existsSync } from 'node:fs';
 import { availableParallelism } from 'node:os';
 import { join, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
+import { LIMITS } from '../capture/limits.js';
 import { ProgressBar } from '../sweep/progress.js';
 import type { SweepRow } from '../sweep/result-row.js';
 import { checkSweepOut, defaultSweepOut, runSweep } from '../sweep/run-sweep.js';
 import { inShard, shardLabel } from '../sweep/shard.js';
 import { slurmScript } from '../sweep/slurm-script.js';
 import { type SweepInputs, sweepInputs } from '../sweep/sweep-inputs.js';
-import { writeFileAtomic } from '../write/atomic.js';
+import { prepareOutputFolder, writeFileAtomic } from '../write/atomic.js';
 import { ANALYSIS_OPTIONS, analysisSettingsFrom } from './analyze.js';
 import { parseCommandArgs, positiveInteger } from './args.js';
 import { EXIT, UsageError } from './errors.js';
@@ -34,8 +35,15 @@ Resumable: each finished capture's row is appended to journal.jsonl in the
 output folder with the SHA-256 of the capture's files (data, descriptor,
 reference) and of the analysis settings; a re-run skips every capture whose
 files and settings are unchanged, analyses the others, and rebuilds the
-table from the journal. A capture that cannot be read is a row with check
-'input' and does not stop the sweep.
+table from the journal. A journal line that is not a valid row (torn by a
+kill, edited by hand) is moved to journal-set-aside.jsonl with a notice, and
+its capture analysed again. A capture that cannot be read is a row with
+check 'input' and does not stop the sweep.
+
+One sweep at a time per output folder: the run holds the folder's lock file
+(sweep.lock, with its process id and host); a second sweep or merge into it
+is refused, and a lock left by a process of this machine that is no longer
+running is taken over (with a notice).
 
 Split over processes or machines (see docs/cluster.md):
   --shard K/N           analyse only shard K of N (0 ≤ K < N): the captures whose
@@ -53,7 +61,7 @@ Split over processes or machines (see docs/cluster.md):
                         sets the CPUs per task (default 1)
 
 Options:
-  --jobs N              worker threads (default: the number of CPUs, ${availableParallelism()} here)
+  --jobs N              worker threads, at most ${LIMITS.maxJobs} (default: the number of CPUs, ${availableParallelism()} here)
   --out DIR             output folder (default: <input>-sweep beside the input;
                         never the swept folder or inside it)
   --report FILE         also write a self-contained HTML report of the table there
@@ -90,12 +98,16 @@ export async function sweepCommand(argv: readonly string[], out: (s: string) => 
     throw new UsageError("intradyne sweep: expected one DIR_OR_MANIFEST (see 'intradyne sweep --help')");
   const emit = values['emit-slurm'] as string | undefined;
   const tasks = positiveInteger('sweep', 'tasks', values.tasks as string | undefined);
+  if (tasks !== undefined && tasks > LIMITS.maxTasks)
+    throw new UsageError(`intradyne sweep: --tasks expected at most ${LIMITS.maxTasks}, received '${values.tasks}'`);
   if (emit !== undefined && values.shard !== undefined)
     throw new UsageError('intradyne sweep: --emit-slurm writes a script whose tasks choose their shard; give no --shard with it');
   if (emit !== undefined && tasks === undefined)
     throw new UsageError('intradyne sweep: --emit-slurm needs --tasks N, the number of array tasks (shards)');
   if (emit === undefined && tasks !== undefined) throw new UsageError('intradyne sweep: --tasks goes with --emit-slurm FILE');
   const jobsGiven = positiveInteger('sweep', 'jobs', values.jobs as string | undefined);
+  if (jobsGiven !== undefined && jobsGiven > LIMITS.maxJobs)
+    throw new UsageError(`intradyne sweep: --jobs expected at most ${LIMITS.maxJobs}, received '${values.jobs}'`);
   const shard = values.shard !== undefined ? parseShard(values.shard as string, process.env) : undefined;
   const settings = analysisSettingsFrom('sweep', values);
   const inputs = sweepInputs(positionals[0]);
@@ -120,6 +132,7 @@ export async function sweepCommand(argv: readonly string[], out: (s: string) => 
     shard,
     report: values.report as string | undefined,
     onProgress: (k, a) => bar.tick(k, a),
+    onNotice: (message) => err(`sweep: ${message}\n`),
   });
   bar.finish();
   if (values.json) {
@@ -207,6 +220,6 @@ function emitSlurm(
     captures: inputs.captures.length,
     report: typeof values.report === 'string' ? resolve(values.report) : undefined,
   });
-  writeFileAtomic(file, (append) => append(text));
-  mkdirSync(join(resolve(outDir), 'logs'), { recursive: true });
+  writeFileAtomic(file, (append) => append(text), {}, 'Slurm script');
+  prepareOutputFolder(join(resolve(outDir), 'logs'), 'Slurm logs folder');
 }

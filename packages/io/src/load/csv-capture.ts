@@ -1,8 +1,9 @@
-import { closeSync, readSync } from 'node:fs';
+import { closeSync } from 'node:fs';
 import { CHANNEL_NAMES, type ChannelBlock, type ChannelName, concatBlocks } from '@intradyne/core';
-import { InputError } from '../errors/input-error.js';
-import { BufferFeeder, type HeaderCell, NumericCsvTable, type TableBlock } from './csv-table.js';
-import { openForReading, openForReadingAsync } from './open-file.js';
+import { inputFailure } from '../errors/file-system.js';
+import { InputError, withLinkTarget } from '../errors/input-error.js';
+import { BufferFeeder, type HeaderCell, listColumns, NumericCsvTable, type TableBlock } from './csv-table.js';
+import { linkTarget, openInput, openInputAsync, readInput } from './open-file.js';
 import { SAMPLE_RATE_TOLERANCE, TimeAxis } from './time-axis.js';
 
 /** Column names of a capture CSV: the four channels and the time column. */
@@ -69,7 +70,7 @@ function captureResolver(file: string, options: CsvCaptureOptions, wanted: reado
           { file, line, column: 1 },
           'header',
           `a column named '${name}' (case-insensitive${options.columns?.[slotName] ? `, mapped to ${slotName}` : ''})`,
-          `the columns ${cells.map((c) => JSON.stringify(c.name)).join(', ')}`,
+          listColumns(cells),
         );
       }
     });
@@ -207,9 +208,11 @@ function* captureBlocks(file: string, read: ReadFn, options: CsvCaptureOptions):
  * @example for (const block of readCsvCapture('run-07.csv', { sampleRate: 80e9 })) total += block.xi.length;
  */
 export function* readCsvCapture(path: string, options: CsvCaptureOptions = {}): Generator<ChannelBlock, void, undefined> {
-  const fd = openForReading(path);
+  const fd = openInput(path, 'capture');
   try {
-    yield* captureBlocks(path, (b, o, l) => readSync(fd, b, o, l, null), options);
+    yield* captureBlocks(path, (b, o, l) => readInput(fd, path, 'capture', b, o, l, null), options);
+  } catch (e) {
+    throw withLinkTarget(e, path, linkTarget(path));
   } finally {
     closeSync(fd);
   }
@@ -247,15 +250,22 @@ export async function* readCsvCaptureAsync(
   path: string,
   options: CsvCaptureOptions = {},
 ): AsyncGenerator<ChannelBlock, void, undefined> {
-  const handle = await openForReadingAsync(path);
+  const handle = await openInputAsync(path, 'capture');
   try {
     const state = new CaptureCsvState(path, options, CHANNEL_NAMES);
     while (!state.ended) {
       const f = state.feeder;
-      const { bytesRead } = await handle.read(f.buffer, f.offset, f.room, null);
+      let bytesRead: number;
+      try {
+        ({ bytesRead } = await handle.read(f.buffer, f.offset, f.room, null));
+      } catch (e) {
+        throw inputFailure(e, path, 'capture', 'a readable file');
+      }
       state.feed(bytesRead);
       for (const b of state.take()) yield channelBlock(b, options);
     }
+  } catch (e) {
+    throw withLinkTarget(e, path, linkTarget(path));
   } finally {
     await handle.close();
   }
@@ -275,9 +285,11 @@ export function* readCsvCaptureFiles(
 ): Generator<ChannelBlock, void, undefined> {
   const fds: number[] = [];
   try {
-    for (const c of CHANNEL_NAMES) fds.push(openForReading(files[c]));
+    for (const c of CHANNEL_NAMES) fds.push(openInput(files[c], `channel ${c}`));
     const sources = CHANNEL_NAMES.map((c, i) =>
-      syncBlocks(new CaptureCsvState(files[c], options, [c]), (b, o, l) => readSync(fds[i], b, o, l, null)),
+      syncBlocks(new CaptureCsvState(files[c], options, [c]), (b, o, l) =>
+        readInput(fds[i], files[c], `channel ${c}`, b, o, l, null),
+      ),
     );
     let rows = 0;
     for (;;) {

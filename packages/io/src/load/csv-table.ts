@@ -1,5 +1,6 @@
 import { InputError, quoteText } from '../errors/input-error.js';
 import { decimalEnd, scanDecimal } from './decimal.js';
+import { textStart } from './encoding.js';
 
 /** A header cell: its name (trimmed, surrounding quotes removed) and its 1-based field and column. */
 export interface HeaderCell {
@@ -39,6 +40,22 @@ const TAB = 9;
 const QUOTE = 34;
 
 const headerDecoder = new TextDecoder('utf-8');
+const cellDecoder = new TextDecoder('utf-8');
+
+/** Header cells named in a message: the first eight, each quoted and shortened. */
+const LISTED_COLUMNS = 8;
+
+/**
+ * The columns of a header for a message: `the columns "a", "b", …` (the
+ * first eight, quoted and shortened, so that a binary file's first line
+ * stays one short line).
+ * @example listColumns([{ name: 'xi', field: 1, column: 1 }]) // 'the columns "xi"'
+ */
+export function listColumns(cells: readonly HeaderCell[]): string {
+  const shown = cells.slice(0, LISTED_COLUMNS).map((c) => quoteText(c.name));
+  const more = cells.length > LISTED_COLUMNS ? ` and ${cells.length - LISTED_COLUMNS} more` : '';
+  return `the columns ${shown.join(', ')}${more}`;
+}
 
 /**
  * Streaming reader of a numeric CSV table: `#` comment lines (anywhere),
@@ -67,6 +84,7 @@ export class NumericCsvTable {
   private slots: Float64Array[] = [];
   private lines: Int32Array = new Int32Array(0);
   private headerNames: string[] = [];
+  private started = false;
 
   constructor(
     private readonly file: string,
@@ -112,6 +130,15 @@ export class NumericCsvTable {
   consume(bytes: Uint8Array, start: number, end: number, final: boolean): number {
     const view = end === bytes.length ? bytes : bytes.subarray(0, end);
     let pos = start;
+    if (!this.started) {
+      // The first bytes tell a UTF-8 byte-order mark (skipped) from UTF-16 text or a compressed file (refused).
+      if (end - start < 8 && !final) return start;
+      const head = textStart(view.subarray(start, Math.min(end, start + 256)));
+      if ('problem' in head)
+        throw new InputError({ file: this.file, line: 1, column: 1 }, 'encoding', 'CSV text in UTF-8', head.problem);
+      this.started = true;
+      pos += head.skip;
+    }
     while (pos < end) {
       let eol = view.indexOf(NEWLINE, pos);
       if (eol < 0) {
@@ -235,17 +262,22 @@ export class NumericCsvTable {
     throw new InputError(
       { file: this.file, line: this.line, column: at - lineStart + 1 },
       'row',
-      `${expected} cells, as in the header (${this.headerNames.join(',')})`,
+      `${expected} cells, as in the header (${this.headerSummary()})`,
       `${received} cell${received === 1 ? '' : 's'}${received < expected ? ' (a short or truncated row)' : ''}`,
     );
+  }
+
+  private headerSummary(): string {
+    const names = this.headerNames;
+    const shown = names.slice(0, LISTED_COLUMNS).join(',');
+    return names.length > LISTED_COLUMNS ? `${shown},… ${names.length} columns` : shown;
   }
 
   private badCell(bytes: Uint8Array, lineStart: number, a: number, end: number, field: number): never {
     let z = a;
     while (z < end && bytes[z] !== this.delimiter) z++;
     while (z > a && (bytes[z - 1] === SPACE || bytes[z - 1] === TAB)) z--;
-    let text = '';
-    for (let k = a; k < z && k < a + 41; k++) text += String.fromCharCode(bytes[k]);
+    const text = cellDecoder.decode(bytes.subarray(a, Math.min(z, a + 164)));
     const name = this.headerNames[field];
     throw new InputError(
       { file: this.file, line: this.line, column: a - lineStart + 1 },

@@ -1,7 +1,7 @@
 import { basename } from 'node:path';
 import type { EqualizerDiagnostics, FrequencyOffsetDiagnostics, PhaseRecoveryDiagnostics } from '@intradyne/core';
 import type { QualityFigures } from '@intradyne/metrics';
-import { analysisToJson, type FileAnalysis } from '../analysis/analyze-file.js';
+import { analysisToJson, type FileAnalysis, presentedLinewidth } from '../analysis/analyze-file.js';
 import { frequencyTrackPlot, phasePlot } from './carrier-plot.js';
 import { densityPlot } from './density-plot.js';
 import { convergencePlots, tapsPlot } from './equalizer-plots.js';
@@ -113,13 +113,15 @@ function carrierSection({ capture, result }: FileAnalysis): ReportSection {
   const coarse = (result.diagnostics.coarseFrequency as { freqOffsetHz?: number } | null)?.freqOffsetHz ?? 0;
   const trackPlot =
     track.length > 1 ? [figure(frequencyTrackPlot(track, capture.symbolRate, Number.isFinite(coarse) ? coarse : 0))] : [];
-  const known = (v: number, scale: number, unit: string) =>
-    Number.isFinite(v) ? `${formatNumber(v / scale)} ${unit}` : 'not estimated';
+  const known = (v: number | null, scale: number, unit: string) =>
+    v !== null && Number.isFinite(v) ? `${formatNumber(v / scale)} ${unit}` : 'not estimated';
+  const lw = presentedLinewidth(result.linewidthHz);
+  const linewidth = lw.linewidthBelowResolution ? "below the estimate's resolution" : known(lw.linewidthHz, 1e3, 'kHz');
   return {
     id: 'carrier',
     heading: 'Carrier phase',
     note:
-      `Frequency offset ${known(result.freqOffsetHz, 1e6, 'MHz')}; linewidth ${known(result.linewidthHz, 1e3, 'kHz')}; ` +
+      `Frequency offset ${known(result.freqOffsetHz, 1e6, 'MHz')}; linewidth ${linewidth}; ` +
       `${result.cycleSlips.count} cycle slips (marked).`,
     body: plotRow(
       figure(phasePlot(phase, capture.symbolRate, result.cycleSlips, result.record.analysis.skipSymbols, result.freqOffsetHz)),
@@ -147,22 +149,32 @@ function spectrumSection({ result }: FileAnalysis): ReportSection {
 function valuesSection(analysis: FileAnalysis): ReportSection {
   const { result } = analysis;
   const m = result.measurement;
+  // A BER without errors is the upper end of its interval, and Q from it a lower bound: marked so.
   const row = (label: string, f: QualityFigures) => [
     label,
-    formatNumber(f.ber),
+    `${f.berIsUpperBound ? '< ' : ''}${formatNumber(f.ber)}`,
     `${formatNumber(f.berCi95[0])} – ${formatNumber(f.berCi95[1])}`,
     `${f.bitErrors} / ${f.bits}`,
     formatNumber(100 * f.evmRms),
     formatNumber(f.snrDb),
-    f.qDb === null ? '–' : formatNumber(f.qDb),
+    f.qDb === null ? '–' : `${f.berIsUpperBound ? '> ' : ''}${formatNumber(f.qDb)}`,
     formatNumber(f.gmi),
     formatNumber(f.ngmi),
   ];
   // The record has its own section.
   const rest = Object.fromEntries(Object.entries(analysisToJson(analysis)).filter(([k]) => k !== 'record'));
+  const notes = [
+    ...(m?.berIsUpperBound
+      ? [
+          'No bit error was counted: the BER marked "<" is the upper end of its 95 % interval, and the Q marked ">" is computed from it.',
+        ]
+      : []),
+    ...analysis.capture.warnings.map((w) => `Warning: ${w}`),
+  ];
   return {
     id: 'values',
     heading: 'Every figure and diagnostic',
+    note: notes.length > 0 ? notes.join(' ') : undefined,
     body: join([
       m
         ? gridTable(

@@ -33,7 +33,7 @@ export function sweepPoint(r: SweepRow): SweepPoint | null {
     berHi: num(r.ber_ci95_hi),
     gmi: num(r.gmi),
     ngmi: num(r.ngmi),
-    errorFree: r.bit_errors === 0,
+    errorFree: r.ber_is_upper_bound === true,
   };
   return Number.isFinite(p.snrDb) && Number.isFinite(p.ber) && Number.isFinite(p.berHi) ? p : null;
 }
@@ -71,11 +71,18 @@ export function sweepReport(rows: readonly SweepRow[], context: SweepReportConte
   }
   const cell = (v: unknown, digits?: 'exp'): string =>
     typeof v === 'number' ? (digits === 'exp' && v !== 0 ? v.toExponential(2) : formatNumber(v)) : v === null ? '–' : String(v);
+  const warned = rows.filter((r) => typeof r.warnings === 'string');
+  const notes = [
+    failed.length > 0 ? `${failed.length} of ${rows.length} captures failed; their reason is in the last column.` : '',
+    warned.length > 0 ? `${warned.length} captures carry a warning (in the last column).` : '',
+    rows.some((r) => r.ber_is_upper_bound === true)
+      ? 'A BER marked "<" is the upper end of the 95 % interval of a capture without bit errors, not an estimate.'
+      : '',
+  ].filter((n) => n !== '');
   sections.push({
     id: 'rows',
     heading: 'Every capture',
-    note:
-      failed.length > 0 ? `${failed.length} of ${rows.length} captures failed; their reason is in the last column.` : undefined,
+    note: notes.length > 0 ? notes.join(' ') : undefined,
     body: gridTable(
       [
         'capture',
@@ -88,13 +95,13 @@ export function sweepReport(rows: readonly SweepRow[], context: SweepReportConte
         'offset MHz',
         'slips',
         'penalty dB',
-        'failure',
+        'failure or warning',
       ],
       rows.map((r) => [
         cell(r.capture),
         cell(r.modulation),
         cell(typeof r.snr_db === 'number' ? Number(r.snr_db.toFixed(2)) : r.snr_db),
-        cell(r.ber, 'exp'),
+        `${r.ber_is_upper_bound === true ? '< ' : ''}${cell(r.ber, 'exp')}`,
         r.ber_ci95_hi === null ? '–' : `${cell(r.ber_ci95_lo, 'exp')} – ${cell(r.ber_ci95_hi, 'exp')}`,
         cell(typeof r.gmi === 'number' ? Number(r.gmi.toFixed(4)) : r.gmi),
         cell(typeof r.ngmi === 'number' ? Number(r.ngmi.toFixed(4)) : r.ngmi),
@@ -105,7 +112,11 @@ export function sweepReport(rows: readonly SweepRow[], context: SweepReportConte
             ? Number(r.implementation_penalty_db.toFixed(2))
             : r.implementation_penalty_db,
         ),
-        r.ok === true ? '' : `${cell(r.failure_check)}: ${cell(r.failure_reason)}`,
+        r.ok === true
+          ? typeof r.warnings === 'string'
+            ? `warning: ${r.warnings}`
+            : ''
+          : `${cell(r.failure_check)}: ${cell(r.failure_reason)}`,
       ]),
     ),
   });

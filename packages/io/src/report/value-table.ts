@@ -55,7 +55,8 @@ export function valueTable(rows: readonly [string, string][], headings: readonly
 
 /** A table with a header row and any number of columns; numeric cells right-aligned. */
 export function gridTable(headings: readonly string[], rows: readonly (readonly string[])[]): Markup {
-  const numeric = (s: string) => /^[−\-+]?[\d.]+(e[−\-+]?\d+)?( |$)/.test(s) || s === '–';
+  // A bound is a number too: '< 1.2e-5', '> 12.3'.
+  const numeric = (s: string) => /^([<>≤≥] )?[−\-+]?[\d.]+(e[−\-+]?\d+)?( |$)/.test(s) || s === '–';
   return el(
     'table',
     { class: 'values' },

@@ -1,5 +1,6 @@
 import { type AnalysisSettings, analysisToJson, analyzeFile } from '../analysis/analyze-file.js';
 import { InputError } from '../errors/input-error.js';
+import { UsageError } from '../errors/usage-error.js';
 import { captureInputHash } from './input-hash.js';
 import { rowFromAnalysis, rowFromError, type SweepRow } from './result-row.js';
 
@@ -38,9 +39,9 @@ export type SweepOutcome =
 
 /**
  * Hashes a capture's files and, unless the hash equals the stored one,
- * analyses it with the default receiver. A bad capture (InputError) becomes
- * a row with check 'input'; an unexpected error a row with check 'error'.
- * Never throws.
+ * analyses it with the default receiver. A bad capture (InputError, or a
+ * UsageError for an override that does not fit it) becomes a row with check
+ * 'input'; an unexpected error a row with check 'error'. Never throws.
  * @example runSweepTask({ key: 'run-07.csv', path: 'lab/run-07.csv', storedInputSha256: null }, {})
  */
 export function runSweepTask(task: SweepTask, settings: AnalysisSettings): SweepOutcome {
@@ -50,7 +51,7 @@ export function runSweepTask(task: SweepTask, settings: AnalysisSettings): Sweep
     const json = analysisToJson(analyzeFile(task.path, settings));
     return { kind: 'analysed', key: task.key, inputSha256, row: rowFromAnalysis(task.key, json, inputSha256), store: true };
   } catch (e) {
-    const input = e instanceof InputError;
+    const input = e instanceof InputError || e instanceof UsageError;
     const message = input ? (e as Error).message : `${(e as Error).name}: ${(e as Error).message}`;
     return {
       kind: 'analysed',

@@ -1,17 +1,18 @@
 import { createHash, type Hash } from 'node:crypto';
-import { closeSync, existsSync, openSync, readFileSync, readSync } from 'node:fs';
+import { closeSync, existsSync } from 'node:fs';
 import { dirname, resolve } from 'node:path';
 import { descriptorPathFor, resolveDataPath } from '../capture/capture.js';
+import { openInput, readInput, readInputText } from '../load/open-file.js';
 
 /** Bytes per read while hashing: large enough to amortize system calls, small enough to bound memory. */
 const CHUNK_BYTES = 1 << 20;
 
 function hashFile(hash: Hash, path: string): void {
-  const fd = openSync(path, 'r');
+  const fd = openInput(path);
   try {
     const buffer = new Uint8Array(CHUNK_BYTES);
     for (;;) {
-      const n = readSync(fd, buffer, 0, CHUNK_BYTES, null);
+      const n = readInput(fd, path, 'file', buffer, 0, CHUNK_BYTES, null);
       if (n === 0) break;
       hash.update(buffer.subarray(0, n));
     }
@@ -55,7 +56,7 @@ export function captureInputHash(path: string): string | null {
 /** The reference path a descriptor names, when it parses; undefined otherwise. */
 function referenceOf(descriptor: string): string | undefined {
   try {
-    const doc = JSON.parse(readFileSync(descriptor, 'utf8')) as { reference?: unknown };
+    const doc = JSON.parse(readInputText(descriptor, 'descriptor')) as { reference?: unknown };
     return typeof doc.reference === 'string' ? resolve(dirname(descriptor), doc.reference) : undefined;
   } catch {
     return undefined;

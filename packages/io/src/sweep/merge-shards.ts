@@ -1,6 +1,8 @@
-import { existsSync, readdirSync, statSync } from 'node:fs';
+import { type Dirent, existsSync, readdirSync, statSync } from 'node:fs';
 import { join } from 'node:path';
+import { inputFailure } from '../errors/file-system.js';
 import { InputError } from '../errors/input-error.js';
+import { lockFolder } from './folder-lock.js';
 import type { SweepRow } from './result-row.js';
 import { shardOf } from './shard.js';
 import { readShardRecord, SHARD_RECORD_FILE, type ShardRecord } from './shard-record.js';
@@ -42,16 +44,34 @@ const SHARD_FOLDER = /^shard-(\d+)-of-(\d+)$/;
  * shard it does not hash to, or a capture missing or present twice.
  * With `options.report`, also writes the sweep's HTML report there, the
  * same page one sweep with `--report` gives.
+ * The merge holds the results folder's lock (see `lockFolder`) while it
+ * reads and writes, so that it never runs beside a sweep into that folder.
  * @throws InputError naming the results folder or the shard record at fault,
- *   or when the report path is a shard's record
+ *   or when the report path is a shard's record; OutputError when another
+ *   run holds the folder or an output cannot be written
  * @example mergeShards('lab-sweep') // after shards 0/4 … 3/4 wrote lab-sweep/shard-K-of-4
  */
 export function mergeShards(dir: string, options: { readonly report?: string } = {}): MergeReport {
   if (!existsSync(dir) || !statSync(dir).isDirectory())
     throw new InputError({ file: dir }, 'results folder', 'the output folder of a sharded sweep', 'no such folder');
+  const lock = lockFolder(dir, 'merge');
+  try {
+    return mergeLocked(dir, options);
+  } finally {
+    lock.release();
+  }
+}
+
+function mergeLocked(dir: string, options: { readonly report?: string }): MergeReport {
   const found: Found[] = [];
   const unfinished: string[] = [];
-  for (const e of readdirSync(dir, { withFileTypes: true }).sort((a, b) => (a.name < b.name ? -1 : 1))) {
+  let entries: Dirent[];
+  try {
+    entries = readdirSync(dir, { withFileTypes: true });
+  } catch (e) {
+    throw inputFailure(e, dir, 'results folder', 'a readable folder');
+  }
+  for (const e of entries.sort((a, b) => (a.name < b.name ? -1 : 1))) {
     if (!e.isDirectory()) continue;
     const path = join(dir, e.name, SHARD_RECORD_FILE);
     if (existsSync(path)) found.push({ folder: e.name, path, record: readShardRecord(path) });

@@ -8,7 +8,12 @@ import { pipelineFingerprint } from './fingerprint.js';
  * fraction. `failure_check` is the failed check ('equalizer', 'reference',
  * 'modulation', 'length'; 'input' for a capture that could not be read;
  * 'error' for an unexpected error) and `failure_reason` why; the figures are
- * empty then. `input_sha256` hashes the capture's files (see
+ * empty then. `warnings` holds what the analysis noticed without failing
+ * (an Arrow stream without its end marker…), '; '-separated. A capture
+ * without bit errors has no BER estimate: `ber` then holds the upper end of
+ * its 95 % interval and `ber_is_upper_bound` is true, and `q_db`, computed
+ * from it, is a lower bound (`q_db_is_lower_bound`); the same per
+ * polarization. `input_sha256` hashes the capture's files (see
  * `captureInputHash`), `samples_sha256` the samples analysed, and
  * `pipeline_sha256` the library version and chain (see `pipelineFingerprint`).
  */
@@ -20,7 +25,9 @@ export const RESULT_COLUMNS = [
   'ok',
   'failure_check',
   'failure_reason',
+  'warnings',
   'ber',
+  'ber_is_upper_bound',
   'ber_ci95_lo',
   'ber_ci95_hi',
   'bit_errors',
@@ -29,6 +36,7 @@ export const RESULT_COLUMNS = [
   'evm_rms',
   'snr_db',
   'q_db',
+  'q_db_is_lower_bound',
   'gmi',
   'ngmi',
   'mi',
@@ -36,9 +44,11 @@ export const RESULT_COLUMNS = [
   'cycle_slips',
   'implementation_penalty_db',
   'x_ber',
+  'x_ber_is_upper_bound',
   'x_snr_db',
   'x_gmi',
   'y_ber',
+  'y_ber_is_upper_bound',
   'y_snr_db',
   'y_gmi',
   'input_sha256',
@@ -49,20 +59,38 @@ export const RESULT_COLUMNS = [
 /** One column name of the results table. */
 export type ResultColumn = (typeof RESULT_COLUMNS)[number];
 
-/** The columns that hold text; the others hold numbers (`ok` as 1/0 in Arrow). */
+/** The columns that hold text. */
 export const TEXT_COLUMNS: ReadonlySet<ResultColumn> = new Set<ResultColumn>([
   'capture',
   'modulation',
   'failure_check',
   'failure_reason',
+  'warnings',
   'input_sha256',
   'samples_sha256',
   'pipeline_sha256',
 ]);
+
+/** The columns that hold true or false (Bool in Arrow, `true`/`false` in CSV). */
+export const BOOLEAN_COLUMNS: ReadonlySet<ResultColumn> = new Set<ResultColumn>([
+  'ok',
+  'ber_is_upper_bound',
+  'q_db_is_lower_bound',
+  'x_ber_is_upper_bound',
+  'y_ber_is_upper_bound',
+]);
+
+/** The columns that hold counts (Int64 in Arrow). */
+export const INTEGER_COLUMNS: ReadonlySet<ResultColumn> = new Set<ResultColumn>(['bit_errors', 'bits', 'cycle_slips']);
+
+/** What a column holds: text, a boolean, a count, or any other number (float64). */
+export function columnKind(c: ResultColumn): 'text' | 'boolean' | 'integer' | 'number' {
+  return TEXT_COLUMNS.has(c) ? 'text' : BOOLEAN_COLUMNS.has(c) ? 'boolean' : INTEGER_COLUMNS.has(c) ? 'integer' : 'number';
+}
 /** One row of the results table: a value (or null) per column. */
 export type SweepRow = Readonly<Record<ResultColumn, number | string | boolean | null>> & ResultRow;
 
-type Figures = { ber: number | null; snrDb: number | null; gmi: number | null };
+type Figures = { ber: number | null; berIsUpperBound: boolean | null; snrDb: number | null; gmi: number | null };
 
 const emptyRow = (): Record<ResultColumn, number | string | boolean | null> =>
   Object.fromEntries(RESULT_COLUMNS.map((c) => [c, null])) as Record<ResultColumn, number | string | boolean | null>;
@@ -75,6 +103,7 @@ const emptyRow = (): Record<ResultColumn, number | string | boolean | null> =>
 export function rowFromAnalysis(key: string, json: Record<string, unknown>, inputSha256: string | null): SweepRow {
   const j = json as Record<string, never> & {
     failure: { check: string; reason: string } | null;
+    warnings: string[] | undefined;
     berCi95: [number | null, number | null] | null;
     perPol: { x: Figures; y: Figures } | null;
     record: { version: string; pipeline: unknown; inputSha256: string };
@@ -88,7 +117,9 @@ export function rowFromAnalysis(key: string, json: Record<string, unknown>, inpu
     ok: j.ok,
     failure_check: j.failure?.check ?? null,
     failure_reason: j.failure?.reason ?? null,
+    warnings: j.warnings && j.warnings.length > 0 ? j.warnings.join('; ') : null,
     ber: j.ber,
+    ber_is_upper_bound: j.berIsUpperBound ?? null,
     ber_ci95_lo: j.berCi95?.[0] ?? null,
     ber_ci95_hi: j.berCi95?.[1] ?? null,
     bit_errors: j.bitErrors,
@@ -97,6 +128,7 @@ export function rowFromAnalysis(key: string, json: Record<string, unknown>, inpu
     evm_rms: j.evmRms,
     snr_db: j.snrDb,
     q_db: j.qDb,
+    q_db_is_lower_bound: j.qIsLowerBound ?? null,
     gmi: j.gmi,
     ngmi: j.ngmi,
     mi: j.mi,
@@ -104,9 +136,11 @@ export function rowFromAnalysis(key: string, json: Record<string, unknown>, inpu
     cycle_slips: j.cycleSlips,
     implementation_penalty_db: j.implementationPenaltyDb,
     x_ber: j.perPol?.x.ber ?? null,
+    x_ber_is_upper_bound: j.perPol?.x.berIsUpperBound ?? null,
     x_snr_db: j.perPol?.x.snrDb ?? null,
     x_gmi: j.perPol?.x.gmi ?? null,
     y_ber: j.perPol?.y.ber ?? null,
+    y_ber_is_upper_bound: j.perPol?.y.berIsUpperBound ?? null,
     y_snr_db: j.perPol?.y.snrDb ?? null,
     y_gmi: j.perPol?.y.gmi ?? null,
     input_sha256: inputSha256,
@@ -127,4 +161,64 @@ export function rowFromError(key: string, check: 'input' | 'error', reason: stri
     failure_reason: reason,
     input_sha256: inputSha256,
   } as SweepRow;
+}
+
+const SHA256 = /^[0-9a-f]{64}$/;
+const PROBABILITIES: readonly ResultColumn[] = ['ber', 'ber_ci95_lo', 'ber_ci95_hi', 'ser', 'x_ber', 'y_ber'];
+const describe = (v: unknown): string => (v === undefined ? 'nothing' : (JSON.stringify(v)?.slice(0, 60) ?? String(v)));
+
+/**
+ * What is wrong with a results row read back from a file (a sweep's journal,
+ * a shard record), in words, or null when it is a row this version writes:
+ * every column of {@link RESULT_COLUMNS} and no other, each of its kind
+ * (text, boolean, a count, a finite number, or null), probabilities in
+ * [0, 1], bit errors at most the bits, fingerprints as SHA-256 in hex, and
+ * the figures of a measured row present. Rows are checked like any input
+ * before they reach a table, so that a damaged or hand-edited line never
+ * becomes an `undefined` or NaN cell.
+ * @example rowProblem({ capture: 'a.csv' }) // "column 'modulation': expected text or null, received nothing"
+ */
+export function rowProblem(row: unknown): string | null {
+  if (row === null || typeof row !== 'object' || Array.isArray(row)) return `expected an object, received ${describe(row)}`;
+  const r = row as Record<string, unknown>;
+  for (const k of Object.keys(r))
+    if (!(RESULT_COLUMNS as readonly string[]).includes(k))
+      return `column ${JSON.stringify(k).slice(0, 60)}: not a column of the table`;
+  for (const c of RESULT_COLUMNS) {
+    const v = r[c];
+    if (v === null) continue;
+    const kind = columnKind(c);
+    const ok =
+      kind === 'text'
+        ? typeof v === 'string'
+        : kind === 'boolean'
+          ? typeof v === 'boolean'
+          : kind === 'integer'
+            ? typeof v === 'number' && Number.isSafeInteger(v) && v >= 0
+            : typeof v === 'number' && Number.isFinite(v);
+    const words = { text: 'text', boolean: 'true or false', integer: 'a whole number ≥ 0', number: 'a finite number' }[kind];
+    if (!ok) return `column '${c}': expected ${words} or null, received ${describe(v)}`;
+  }
+  if (typeof r.capture !== 'string' || r.capture === '')
+    return `column 'capture': expected the capture's key, received ${describe(r.capture)}`;
+  if (typeof r.ok !== 'boolean') return `column 'ok': expected true or false, received ${describe(r.ok)}`;
+  for (const c of PROBABILITIES) {
+    const v = r[c];
+    if (typeof v === 'number' && !(v >= 0 && v <= 1)) return `column '${c}': expected a probability in [0, 1], received ${v}`;
+  }
+  for (const c of ['input_sha256', 'samples_sha256', 'pipeline_sha256'] as const) {
+    const v = r[c];
+    if (typeof v === 'string' && !SHA256.test(v)) return `column '${c}': expected a SHA-256 in hex, received ${describe(v)}`;
+  }
+  if (typeof r.bit_errors === 'number' && typeof r.bits === 'number' && r.bit_errors > r.bits)
+    return `column 'bit_errors': expected at most the bits (${r.bits}), received ${r.bit_errors}`;
+  if (r.ok === true) {
+    for (const c of ['ber', 'ber_is_upper_bound', 'bit_errors', 'bits'] as const)
+      if (r[c] === null) return `column '${c}': expected a value in a measured row (ok true), received null`;
+    if (r.failure_check !== null)
+      return `column 'failure_check': expected null in a measured row, received ${describe(r.failure_check)}`;
+  } else if (typeof r.failure_check !== 'string') {
+    return `column 'failure_check': expected the failed check in a row with ok false, received ${describe(r.failure_check)}`;
+  }
+  return null;
 }

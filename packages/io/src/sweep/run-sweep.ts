@@ -1,12 +1,16 @@
-import { mkdirSync, rmSync } from 'node:fs';
+import { rmSync } from 'node:fs';
 import { join, relative, resolve } from 'node:path';
 import { LIBRARY_VERSION } from '@intradyne/core';
 import type { AnalysisSettings } from '../analysis/analyze-file.js';
 import { descriptorPathFor } from '../capture/capture.js';
+import { outputFailure } from '../errors/file-system.js';
 import { InputError } from '../errors/input-error.js';
+import { checkReportPath } from '../report/write-report.js';
+import { prepareOutputFolder } from '../write/atomic.js';
 import type { SweepOutcome, SweepTask } from './analyze-task.js';
 import { settingsFingerprint } from './fingerprint.js';
-import { appendJournal, closeTornLine, JOURNAL_FILE, latestEntries, readJournal } from './journal.js';
+import { lockFolder } from './folder-lock.js';
+import { appendJournal, inspectJournal, JOURNAL_FILE, latestEntries, readJournal, tidyJournal } from './journal.js';
 import type { SweepRow } from './result-row.js';
 import { inShard, type ShardSpec, shardFolderName } from './shard.js';
 import { listingFingerprint, SHARD_RECORD_FILE, SHARD_RECORD_FORMAT, writeShardRecord } from './shard-record.js';
@@ -32,6 +36,11 @@ export interface SweepOptions {
   readonly report?: string;
   /** Called on the main thread as each capture finishes (for a progress bar). */
   readonly onProgress?: (key: string, analysed: boolean) => void;
+  /**
+   * Called with what the run noticed and did about it (a stale lock taken
+   * over, journal lines set aside), one message at a time, for stderr.
+   */
+  readonly onNotice?: (message: string) => void;
 }
 
 /** What a sweep did. */
@@ -103,8 +112,15 @@ export function checkSweepOut(inputs: SweepInputs, out: string): void {
  * the hash of its files now and the same settings is skipped. The table is
  * then rebuilt from the stored rows, in the sweep's order.
  * With `options.report`, also writes the sweep's HTML report there.
+ *
+ * The run holds the folder's lock (see `lockFolder`) from start to end, so
+ * two sweeps never write one folder. The journal is read like any input:
+ * lines that are not valid entries are set aside (see `tidyJournal`) and
+ * their captures analysed again. The output paths are checked before any
+ * analysis, and the tables and the report are written all or none.
  * @throws InputError when `out` is the swept folder, lies inside it, or
- *   holds an input file, or when the report path is an input
+ *   holds an input file, or when the report path is an input; OutputError
+ *   when another run holds the folder or an output cannot be written
  * @example const report = await runSweep(sweepInputs('osnr-sweep'), { out: 'results', jobs: 4, settings: {} });
  */
 export async function runSweep(inputs: SweepInputs, options: SweepOptions): Promise<SweepReport> {
@@ -112,13 +128,50 @@ export async function runSweep(inputs: SweepInputs, options: SweepOptions): Prom
   const { shard } = options;
   const captures = shard ? inShard(inputs.captures, shard) : inputs.captures;
   const out = shard ? join(options.out, shardFolderName(shard)) : options.out;
-  mkdirSync(out, { recursive: true });
-  // A shard is unfinished (for the merge) until this run writes its record again.
-  if (shard) rmSync(join(out, SHARD_RECORD_FILE), { force: true });
   const journalPath = join(out, JOURNAL_FILE);
-  closeTornLine(journalPath);
+  const reportInputs = [
+    ...inputs.captures.flatMap((c) => [c.path, descriptorPathFor(c.path)]),
+    journalPath,
+    join(out, 'results.csv'),
+    join(out, 'results.arrow'),
+  ];
+  // Checked before hours of analysis, not after.
+  if (options.report) checkReportPath(options.report, reportInputs);
+  prepareOutputFolder(out);
+  const lock = lockFolder(out, shard ? `sweep of shard ${shard.index}/${shard.count}` : 'sweep');
+  try {
+    if (lock.tookOverFrom)
+      options.onNotice?.(
+        `took over the lock of ${out} from process ${lock.tookOverFrom.pid} on ${lock.tookOverFrom.host}, which is no longer running`,
+      );
+    return await sweepLocked(inputs, options, captures, out, journalPath, reportInputs);
+  } finally {
+    lock.release();
+  }
+}
+
+async function sweepLocked(
+  inputs: SweepInputs,
+  options: SweepOptions,
+  captures: SweepInputs['captures'],
+  out: string,
+  journalPath: string,
+  reportInputs: readonly string[],
+): Promise<SweepReport> {
+  const { shard } = options;
+  // A shard is unfinished (for the merge) until this run writes its record again.
+  if (shard) {
+    const record = join(out, SHARD_RECORD_FILE);
+    try {
+      rmSync(record, { force: true });
+    } catch (e) {
+      throw outputFailure(e, record, 'shard record', 'a file that can be removed');
+    }
+  }
+  const reading = inspectJournal(journalPath);
+  for (const notice of tidyJournal(journalPath, reading)) options.onNotice?.(notice);
   const settingsSha256 = settingsFingerprint(options.settings);
-  const stored = latestEntries(readJournal(journalPath), settingsSha256);
+  const stored = latestEntries(reading.entries, settingsSha256);
   const tasks: SweepTask[] = captures.map((c) => ({
     key: c.key,
     path: c.path,
@@ -157,7 +210,7 @@ export async function runSweep(inputs: SweepInputs, options: SweepOptions): Prom
           settings: options.settings,
           settingsSha256,
         },
-        inputs: inputs.captures.flatMap((c) => [c.path, descriptorPathFor(c.path)]),
+        inputs: reportInputs,
       }
     : undefined;
   const { csvPath, arrowPath, reportPath } = writeSweepOutputs(out, table, report);

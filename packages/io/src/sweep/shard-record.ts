@@ -1,10 +1,11 @@
-import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { Sha256 } from '@intradyne/core';
 import type { AnalysisSettings } from '../analysis/analyze-file.js';
+import { parseJsonFile } from '../capture/json-positions.js';
 import { InputError } from '../errors/input-error.js';
+import { readInputText } from '../load/open-file.js';
 import { writeJsonAtomic } from '../write/csv.js';
-import type { SweepRow } from './result-row.js';
+import { rowProblem, type SweepRow } from './result-row.js';
 import type { SweepInputs } from './sweep-inputs.js';
 
 /** The file a finished shard writes into its folder, last, atomically: its rows and what made them. */
@@ -50,6 +51,8 @@ export interface ShardRecord {
   };
   /** The shard's rows, in the sweep's order. */
   readonly rows: readonly PlacedRow[];
+  /** SHA-256 (hex) of `rows` as written (`JSON.stringify(rows)`): rows edited or damaged no longer match. */
+  readonly rowsSha256: string;
 }
 
 const UTF8 = new TextEncoder();
@@ -63,27 +66,26 @@ export function listingFingerprint(inputs: SweepInputs): string {
   return new Sha256().update(UTF8.encode(inputs.captures.map((c) => `${c.key}\n`).join(''))).hex();
 }
 
-/** Writes a shard's record into its folder, atomically, replacing an earlier one. */
-export function writeShardRecord(dir: string, record: ShardRecord): string {
+/** SHA-256 (hex) of a shard's rows as written. */
+const rowsFingerprint = (rows: unknown) => new Sha256().update(UTF8.encode(JSON.stringify(rows))).hex();
+
+/** Writes a shard's record into its folder, atomically, replacing an earlier one, with the rows' fingerprint. */
+export function writeShardRecord(dir: string, record: Omit<ShardRecord, 'rowsSha256'>): string {
   const path = join(dir, SHARD_RECORD_FILE);
-  writeJsonAtomic(path, record, { overwrite: true });
+  writeJsonAtomic(path, { ...record, rowsSha256: rowsFingerprint(record.rows) }, { overwrite: true });
   return path;
 }
 
 const isWhole = (v: unknown): v is number => typeof v === 'number' && Number.isSafeInteger(v) && v >= 0;
 
 /**
- * Reads and checks a shard record.
- * @throws InputError naming the file and the field that is missing or wrong
+ * Reads and checks a shard record, every row as `rowProblem` checks a row,
+ * and the rows against their fingerprint `rowsSha256`.
+ * @throws InputError naming the file and the field or row that is missing or wrong
  * @example readShardRecord('lab-sweep/shard-2-of-4/shard.json').rows.length // captures of shard 2
  */
 export function readShardRecord(path: string): ShardRecord {
-  let doc: Record<string, unknown>;
-  try {
-    doc = JSON.parse(readFileSync(path, 'utf8'));
-  } catch (e) {
-    throw new InputError({ file: path }, 'shard record', 'a readable JSON file written by a sharded sweep', (e as Error).message);
-  }
+  const doc = parseJsonFile(readInputText(path, 'shard record'), path) as Record<string, unknown>;
   const bad = (field: string, expected: string) =>
     new InputError({ file: path }, `field '${field}'`, expected, JSON.stringify(doc?.[field] ?? null).slice(0, 80));
   if (doc === null || typeof doc !== 'object') throw new InputError({ file: path }, 'shard record', 'a JSON object', String(doc));
@@ -97,9 +99,20 @@ export function readShardRecord(path: string): ShardRecord {
   if (input === null || typeof input !== 'object' || !isWhole(input.captures) || typeof input.listingSha256 !== 'string')
     throw bad('input', 'the sweep input: { kind, captures, listingSha256 }');
   if (!Array.isArray(doc.rows)) throw bad('rows', 'an array of { position, row }');
-  for (const r of doc.rows as { position?: unknown; row?: { capture?: unknown } }[]) {
+  for (const [i, r] of (doc.rows as { position?: unknown; row?: { capture?: unknown } }[]).entries()) {
     if (!isWhole(r?.position) || typeof r.row?.capture !== 'string')
       throw new InputError({ file: path }, 'rows', 'entries { position, row } with a capture', JSON.stringify(r).slice(0, 80));
+    // Rows are checked like any input, so that a damaged record never reaches the merged table.
+    const problem = rowProblem(r.row);
+    if (problem !== null)
+      throw new InputError(
+        { file: path },
+        `row ${i + 1} (${JSON.stringify(r.row.capture).slice(0, 60)})`,
+        'a results row of this version',
+        problem,
+      );
   }
+  if (doc.rowsSha256 !== rowsFingerprint(doc.rows))
+    throw bad('rowsSha256', 'the fingerprint of the rows written with it (the rows were edited or damaged)');
   return doc as unknown as ShardRecord;
 }

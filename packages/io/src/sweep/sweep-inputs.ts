@@ -1,7 +1,9 @@
-import { readFileSync, statSync } from 'node:fs';
-import { dirname, join, relative, resolve, sep } from 'node:path';
-import { listCaptures } from '../capture/capture.js';
-import { InputError } from '../errors/input-error.js';
+import { statSync } from 'node:fs';
+import { dirname, extname, join, relative, resolve, sep } from 'node:path';
+import { DATA_EXTENSIONS, listCaptures } from '../capture/capture.js';
+import { inputFailure } from '../errors/file-system.js';
+import { InputError, quoteText } from '../errors/input-error.js';
+import { readInputText } from '../load/open-file.js';
 
 /** One capture of a sweep. */
 export interface SweepCapture {
@@ -39,8 +41,8 @@ export function sweepInputs(input: string): SweepInputs {
   let isFolder: boolean;
   try {
     isFolder = statSync(input).isDirectory();
-  } catch {
-    throw new InputError({ file: input }, 'sweep input', 'a folder of captures or a manifest file', 'no such file or folder');
+  } catch (e) {
+    throw inputFailure(e, input, 'sweep input', 'a folder of captures or a manifest file');
   }
   if (isFolder) {
     const found = listCaptures(input);
@@ -59,17 +61,27 @@ export function sweepInputs(input: string): SweepInputs {
 
 /**
  * Reads a manifest (format in {@link sweepInputs}).
- * @throws InputError naming the manifest and line of a capture listed twice, or an empty manifest
+ * @throws InputError naming the manifest and line of a capture listed twice
+ *   or of a line that names no data file or descriptor, or an empty manifest
  * @example readManifest('best-two.txt') // the captures listed, in order
  */
 export function readManifest(path: string): SweepCapture[] {
   const root = dirname(path);
-  const lines = readFileSync(path, 'utf8').split(/\r?\n/);
+  const lines = readInputText(path, 'manifest').split(/\r?\n/);
   const seen = new Map<string, number>();
   const captures: SweepCapture[] = [];
   for (const [i, raw] of lines.entries()) {
     const text = raw.trim();
     if (text === '' || text.startsWith('#')) continue;
+    // A line names a capture's data file or its descriptor: anything else (a folder, a note) is a mistake of the line.
+    const ext = extname(text).toLowerCase();
+    if (!(ext in DATA_EXTENSIONS) && ext !== '.json')
+      throw new InputError(
+        { file: path, line: i + 1, column: raw.indexOf(text) + 1 },
+        'capture',
+        `the path of a data file (${Object.keys(DATA_EXTENSIONS).join(', ')}) or of its descriptor (.json)`,
+        quoteText(text),
+      );
     const full = resolve(root, text);
     const key = toKey(relative(resolve(root), full));
     const first = seen.get(key);

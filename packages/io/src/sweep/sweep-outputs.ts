@@ -1,7 +1,8 @@
 import { type SweepReportContext, sweepReport } from '../report/sweep-report.js';
-import { writeReport } from '../report/write-report.js';
+import { checkReportPath, stageReport } from '../report/write-report.js';
+import { commitTogether } from '../write/atomic.js';
 import type { SweepRow } from './result-row.js';
-import { type ResultsTableFiles, writeResultsTable } from './results-table.js';
+import { type ResultsTableFiles, resultsTableStages } from './results-table.js';
 
 /** The files a sweep's final rows were written to. */
 export interface SweepOutputPaths extends ResultsTableFiles {
@@ -13,8 +14,10 @@ export interface SweepOutputPaths extends ResultsTableFiles {
  * Writes a sweep's final rows: `results.csv` and `results.arrow` in `out`,
  * and, when `report` is given, the HTML report at `report.path`. The one
  * place that turns final rows into files, for a sweep and for anything
- * else that assembles final rows (merged shards).
- * @throws InputError when the report path is one of `report.inputs`
+ * else that assembles final rows (merged shards). All of them are staged
+ * before any is put in place, so that a failure (a full disk, a folder in
+ * the report's way) leaves the earlier files as they were.
+ * @throws InputError when the report path is one of `report.inputs`; OutputError when a file cannot be written
  * @example writeSweepOutputs('lab-sweep', rows, { path: 'lab.html', context: { source: 'lab', library: 'intradyne', version: LIBRARY_VERSION } });
  */
 export function writeSweepOutputs(
@@ -22,7 +25,13 @@ export function writeSweepOutputs(
   rows: readonly SweepRow[],
   report?: { readonly path: string; readonly context: SweepReportContext; readonly inputs?: readonly string[] },
 ): SweepOutputPaths {
-  const table = writeResultsTable(out, rows);
-  if (report) writeReport(report.path, sweepReport(rows, report.context), report.inputs);
-  return { ...table, reportPath: report?.path ?? null };
+  const table = resultsTableStages(out, rows);
+  const stages = [...table.stages];
+  if (report) {
+    checkReportPath(report.path, report.inputs);
+    const html = sweepReport(rows, report.context);
+    stages.push(() => stageReport(report.path, html, report.inputs));
+  }
+  commitTogether(stages);
+  return { ...table.files, reportPath: report?.path ?? null };
 }

@@ -1,5 +1,5 @@
 import type { DualPol, ScopeChannels } from '@intradyne/core';
-import { type AtomicWriteOptions, writeFileAtomic } from './atomic.js';
+import { type AtomicWriteOptions, type StagedFile, stageFile } from './atomic.js';
 
 /** Lines per write call: large enough to amortize system calls, small enough to bound memory. */
 const LINES_PER_CHUNK = 8192;
@@ -24,8 +24,16 @@ export interface CaptureCsvOptions extends AtomicWriteOptions {
  * @example writeCaptureCsv('run-07.csv', sim.channels, { comments: ['bench 3'], timeColumn: true });
  */
 export function writeCaptureCsv(path: string, channels: ScopeChannels, options: CaptureCsvOptions = {}): void {
+  stageCaptureCsv(path, channels, options).commit();
+}
+
+/**
+ * {@link writeCaptureCsv} staged (see `stageFile`), for a caller that writes several files all or none.
+ * @example stageCaptureCsv('run-07.csv', sim.channels).commit();
+ */
+export function stageCaptureCsv(path: string, channels: ScopeChannels, options: CaptureCsvOptions = {}): StagedFile {
   const { xi, xq, yi, yq, sampleRate } = channels;
-  writeFileAtomic(
+  return stageFile(
     path,
     (append) => {
       for (const c of options.comments ?? []) append(`# ${c}\n`);
@@ -51,8 +59,16 @@ export function writeCaptureCsv(path: string, channels: ScopeChannels, options: 
  * @example writeReferenceCsv('run-07-reference.csv', sim.reference);
  */
 export function writeReferenceCsv(path: string, symbols: DualPol, options: CaptureCsvOptions = {}): void {
+  stageReferenceCsv(path, symbols, options).commit();
+}
+
+/**
+ * {@link writeReferenceCsv} staged (see `stageFile`), for a caller that writes several files all or none.
+ * @example stageReferenceCsv('run-07-reference.csv', sim.reference).commit();
+ */
+export function stageReferenceCsv(path: string, symbols: DualPol, options: CaptureCsvOptions = {}): StagedFile {
   const { x, y } = symbols;
-  writeFileAtomic(
+  return stageFile(
     path,
     (append) => {
       for (const c of options.comments ?? []) append(`# ${c}\n`);
@@ -77,5 +93,14 @@ export function writeReferenceCsv(path: string, symbols: DualPol, options: Captu
  * @example writeJsonAtomic('run-07.json', { sampleRate: 64e9, symbolRate: 32e9, modulation: 'qpsk', reference: 'run-07-reference.csv' });
  */
 export function writeJsonAtomic(path: string, value: unknown, options: AtomicWriteOptions = {}): void {
-  writeFileAtomic(path, (append) => append(`${JSON.stringify(value, null, 2)}\n`), options);
+  stageJson(path, value, options).commit();
+}
+
+/**
+ * {@link writeJsonAtomic} staged (see `stageFile`), for a caller that writes several files all or none.
+ * @example stageJson('run-07.json', descriptor).commit();
+ */
+export function stageJson(path: string, value: unknown, options: AtomicWriteOptions = {}): StagedFile {
+  const text = `${JSON.stringify(value, null, 2)}\n`;
+  return stageFile(path, (append) => append(text), options);
 }

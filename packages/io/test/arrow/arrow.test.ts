@@ -204,7 +204,7 @@ describe('Arrow IPC', () => {
     writeFileSync(path, whole.subarray(0, Math.floor(whole.length * 0.6)));
     expect(caught(() => loadArrowCapture(path, { sampleRate: 1e9 }))).toBeInstanceOf(InputError);
     expect(caught(() => loadArrowCapture(join(dir, 'missing.arrow'), { sampleRate: 1e9 })).message).toMatch(
-      /missing.arrow: file: expected a readable file, received ENOENT/,
+      /missing.arrow: capture: expected a readable file, received ENOENT \(no such file or folder\)/,
     );
     writeFileSync(path, 'xi,xq,yi,yq\n1,2,3,4\n');
     expect(arrowError(() => loadArrowCapture(path, { sampleRate: 1e9 })).message).toMatch(/expected an Arrow IPC file or stream/);
@@ -224,28 +224,40 @@ describe('Arrow IPC', () => {
     expect(loadReferenceCsv(join(FIXTURES, 'qpsk-clean-reference.csv')).x.length).toBe(2 * 8192);
   });
 
-  it('writes a results table with numeric, string and missing values', () => {
+  it('writes a results table with numeric, integer, boolean, string and missing values, each with its Arrow type', () => {
     const dir = tempDir();
     const path = join(dir, 'results.arrow');
-    writeResultsArrow(path, [
-      { capture: 'a', ber: 1e-3, snrDb: 15.2, converged: true },
-      { capture: 'b', ber: null, snrDb: 9.1, note: 'slipped' },
-    ]);
+    writeResultsArrow(
+      path,
+      [
+        { capture: 'a', ber: 1e-3, snrDb: 15.2, converged: true, bits: 2 ** 40 },
+        { capture: 'b', ber: null, snrDb: 9.1, note: 'slipped', bits: null },
+      ],
+      { integerColumns: ['bits'] },
+    );
     const t = tableFromIPC(new Uint8Array(readFileSync(path)));
     expect(t.schema.fields.map((f) => [f.name, String(f.type)])).toEqual([
       ['capture', 'Utf8'],
       ['ber', 'Float64'],
       ['snrDb', 'Float64'],
-      ['converged', 'Float64'],
+      ['converged', 'Bool'],
+      ['bits', 'Int64'],
       ['note', 'Utf8'],
     ]);
     expect(t.getChild('ber')?.get(1)).toBeNull();
-    expect(t.getChild('converged')?.get(0)).toBe(1);
+    expect(t.getChild('converged')?.get(0)).toBe(true);
+    expect(t.getChild('converged')?.get(1)).toBeNull();
+    // 2^40 bits: exact as an Int64, which a float64 holds too, but a count is a count.
+    expect(t.getChild('bits')?.get(0)).toBe(2n ** 40n);
+    expect(t.getChild('bits')?.get(1)).toBeNull();
+    expect(() => writeResultsArrow(join(dir, 'fraction.arrow'), [{ bits: 1.5 }], { integerColumns: ['bits'] })).toThrow(
+      /column 'bits' expected whole numbers, received 1.5/,
+    );
     expect(t.getChild('note')?.get(1)).toBe('slipped');
     // Atomic writer: an existing file is never replaced without `overwrite`.
     expect(() => writeResultsArrow(path, [{ a: 1 }])).toThrow(/already exists/);
     expect(() => writeResultsArrow(join(dir, 'mixed.arrow'), [{ a: 1 }, { a: 'x' }])).toThrow(
-      /column 'a' expected numbers or strings/,
+      /column 'a' expected numbers, booleans or strings, received a mix/,
     );
   });
 });

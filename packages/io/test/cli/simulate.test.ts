@@ -79,7 +79,9 @@ describe('intradyne command', () => {
     expect(bad.code).toBe(2);
     expect(bad.stderr).toMatch(/rollOff' expected a roll-off in \(0, 1\], received 2/);
     writeFileSync(file, '{ "name": ');
-    expect(run(['simulate', file, '--out', dir]).stderr).toMatch(/not valid JSON/);
+    expect(run(['simulate', file, '--out', dir]).stderr).toMatch(
+      /lab\.json:1:11: JSON syntax: expected a JSON value .*, received the end of the file/,
+    );
   });
 });
 

@@ -162,7 +162,7 @@ describe('CSV capture loader', () => {
     }
     it('a missing file', () => {
       expect(inputError(() => loadCsvCapture('no/such/capture.csv', { sampleRate: 1 })).message).toBe(
-        'no/such/capture.csv: file: expected a readable file, received ENOENT',
+        'no/such/capture.csv: capture: expected a readable file, received ENOENT (no such file or folder)',
       );
     });
     it('no time column and no stated rate', () => {

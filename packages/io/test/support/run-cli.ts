@@ -76,3 +76,29 @@ export function runBuilt(
     onStart?.(() => child.kill('SIGKILL'));
   });
 }
+
+/**
+ * Runs the built command with a deadline: a run still going after `ms` is
+ * killed and reported as hung (a FIFO or a device read without end would
+ * otherwise stall the test run).
+ */
+export async function runBuiltWithin(
+  argv: readonly string[],
+  ms: number,
+  env: Readonly<Record<string, string | undefined>> = {},
+): Promise<CliRun & { hung: boolean }> {
+  let hung = false;
+  let timer: NodeJS.Timeout | undefined;
+  const run = await runBuilt(
+    argv,
+    (kill) => {
+      timer = setTimeout(() => {
+        hung = true;
+        kill();
+      }, ms);
+    },
+    env,
+  );
+  clearTimeout(timer);
+  return { ...run, hung };
+}

@@ -6,7 +6,7 @@ import { tableFromIPC } from 'apache-arrow';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { RESULT_COLUMNS } from '../../src/sweep/result-row.js';
 import { shardOf } from '../../src/sweep/shard.js';
-import type { ShardRecord } from '../../src/sweep/shard-record.js';
+import { type ShardRecord, writeShardRecord } from '../../src/sweep/shard-record.js';
 import { runBuilt, runMain } from '../support/run-cli.js';
 import { simulateSixteenCaptures } from '../support/sharded-captures.js';
 import { tempDir } from '../support/temp.js';
@@ -28,8 +28,8 @@ let sharded: string;
 const counts = (stdout: string) => /analysed (\d+), skipped (\d+), failed (\d+)/.exec(stdout)?.slice(1).map(Number);
 const readRecord = (dir: string, k: number): ShardRecord =>
   JSON.parse(readFileSync(join(dir, `shard-${k}-of-4`, 'shard.json'), 'utf8'));
-const writeRecord = (dir: string, k: number, r: ShardRecord) =>
-  writeFileSync(join(dir, `shard-${k}-of-4`, 'shard.json'), JSON.stringify(r));
+/** Writes a changed record as a shard would (with its rows' fingerprint), to test the merge's checks across shards. */
+const writeRecord = (dir: string, k: number, r: ShardRecord) => writeShardRecord(join(dir, `shard-${k}-of-4`), r);
 /** A copy of the four finished shards, to break. */
 const shardsCopy = () => {
   const dir = join(tempDir(), 'shards');
