@@ -27,7 +27,9 @@ export interface PhaseRecoveryOptions {
    * error at the SNR and phase noise found there (see
    * {@link chooseHalfWindow}: a provisional estimate with N = 16 measures
    * the estimator's noise and the phase walk, and N follows from the
-   * Wiener trade-off, within 4 … 512).
+   * Wiener trade-off, within 4 … 512; a stream shorter than
+   * `calibrationSymbols` caps it further so that the default linewidth lags
+   * fit in its first half).
    */
   readonly halfWindow?: number | 'auto';
   /**
@@ -478,6 +480,7 @@ class PhaseRecoveryStage implements Stage<'symbols', 'symbols', PhaseRecoveryDia
       const track = (every: number, first: number) => this.provisionalTrack(x, y, every, first, delta);
       const choice = chooseHalfWindow({ all: track(1, 0), even: track(2, 0), odd: track(2, 1) }, PROVISIONAL_HALF_WINDOW);
       halfWindow = choice?.halfWindow ?? FALLBACK_HALF_WINDOW;
+      if (m < this.calibrationSymbols && this.lagsOption === undefined) halfWindow = this.fitLags(halfWindow, m);
       estimatorNoise = choice?.estimatorNoise ?? Number.NaN;
       phaseWalk = choice?.phaseWalk ?? Number.NaN;
     }
@@ -521,6 +524,25 @@ class PhaseRecoveryStage implements Stage<'symbols', 'symbols', PhaseRecoveryDia
       if (ok && got < m) track[got++] = theta[0];
     }
     return track;
+  }
+
+  /**
+   * The largest half window up to `halfWindow` (and at least 4) whose default
+   * linewidth lags fit in the first half of a stream of `symbols` symbols, so
+   * that a short capture still has enough increments at the longer lag for a
+   * linewidth estimate. Captures of the calibration length or longer always fit.
+   */
+  private fitLags(halfWindow: number, symbols: number): number {
+    const fits = (n: number) => defaultLags(this.make(n).delay)[1] <= symbols / 2;
+    if (fits(halfWindow)) return halfWindow;
+    let lo = 4;
+    let hi = halfWindow;
+    while (hi - lo > 1) {
+      const mid = (lo + hi) >> 1;
+      if (fits(mid)) lo = mid;
+      else hi = mid;
+    }
+    return lo;
   }
 
   private dualKernel(halfWindow: number, delta: number): DualPhaseKernel {
