@@ -7,10 +7,11 @@ import { type ComplexArray, complexArray, ifft } from '@intradyne/core';
  * @param received Nr complex symbols
  * @param start first symbol used
  * @param period Nt, the reference length
+ * @param out Nt complex bins to write (a new array when not given)
  * @returns Nt complex bins
  */
-export function foldOntoPeriod(received: ComplexArray, start: number, period: number): ComplexArray {
-  const out = complexArray(period);
+export function foldOntoPeriod(received: ComplexArray, start: number, period: number, out = complexArray(period)): ComplexArray {
+  out.fill(0);
   const n = received.length >> 1;
   let m = start % period;
   for (let k = start; k < n; k++) {
@@ -32,15 +33,19 @@ export function foldOntoPeriod(received: ComplexArray, start: number, period: nu
  * transform is needed.
  * @param foldedSpectrum F̂, Nt bins
  * @param referenceSpectrum T̂, Nt bins
+ * @param scratch Nt complex bins for the product of the spectra, and `out` for c: buffers
+ *   reused across the correlations of one search (new ones when not given), as each is as
+ *   long as the reference
  * @returns c, Nt complex lags
  */
 export function circularCorrelation(
   foldedSpectrum: ComplexArray,
   referenceSpectrum: ComplexArray,
   conjugate: boolean,
+  scratch?: { readonly prod: ComplexArray; readonly out: ComplexArray },
 ): ComplexArray {
   const n = foldedSpectrum.length >> 1;
-  const prod = complexArray(n);
+  const prod = scratch?.prod ?? complexArray(n);
   for (let k = 0; k < n; k++) {
     const j = conjugate ? (n - k) % n : k;
     const fr = foldedSpectrum[2 * k];
@@ -51,5 +56,5 @@ export function circularCorrelation(
     prod[2 * k] = fr * tr - fi * ti;
     prod[2 * k + 1] = fr * ti + fi * tr;
   }
-  return ifft(prod);
+  return ifft(prod, scratch?.out);
 }

@@ -188,17 +188,22 @@ function search(received: DualPol, reference: DualPol, o: Required<SyncOptions>,
     method === 'coherent' ? reference : { x: adjacentProducts(reference.x, true), y: adjacentProducts(reference.y, true) };
   const refSpectra = { x: fft(refs.x), y: fft(refs.y) };
   const best = { x: {}, y: {} } as Candidates;
+  // Every array below is as long as the reference: one set serves all eight correlations.
+  const folded = complexArray(nt);
+  const foldedSpectrum = complexArray(nt);
+  const scratch = { prod: complexArray(nt), out: complexArray(nt) };
   for (const p of ['x', 'y'] as const) {
     // The products start one symbol later: the first has no predecessor among the used symbols.
     const stream = method === 'coherent' ? received[p] : adjacentProducts(received[p], false);
     const start = method === 'coherent' ? o.skipSymbols : o.skipSymbols + 1;
     const count = method === 'coherent' ? used : used - 1;
-    const folded = foldOntoPeriod(stream, start, nt);
-    const foldedSpectrum = fft(folded);
+    foldOntoPeriod(stream, start, nt, folded);
+    fft(folded, foldedSpectrum);
     const foldedEnergy = energy(folded);
     for (const q of ['x', 'y'] as const) {
-      const plain = peak(circularCorrelation(foldedSpectrum, refSpectra[q], false), start, count, foldedEnergy, refs[q], false);
-      const conj = peak(circularCorrelation(foldedSpectrum, refSpectra[q], true), start, count, foldedEnergy, refs[q], true);
+      const correlate = (conjugate: boolean) => circularCorrelation(foldedSpectrum, refSpectra[q], conjugate, scratch);
+      const plain = peak(correlate(false), start, count, foldedEnergy, refs[q], false);
+      const conj = peak(correlate(true), start, count, foldedEnergy, refs[q], true);
       const c = conj.correlation > plain.correlation ? conj : plain;
       best[p][q] = method === 'coherent' ? c : blockCorrelation(c, received[p], reference[q], o.skipSymbols);
     }
