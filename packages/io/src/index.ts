@@ -5,12 +5,7 @@
  * @module @intradyne/io
  */
 
-export {
-  type AnalysisSettings,
-  analysisToJson,
-  analyzeFile,
-  type FileAnalysis,
-} from './analysis/analyze-file.js';
+export { type AnalysisSettings, analyzeFile, type FileAnalysis } from './analysis/analyze-file.js';
 export {
   type ArrowCaptureOptions,
   arrowStreamComplete,
@@ -62,6 +57,24 @@ export { inputFailure, outputFailure } from './errors/file-system.js';
 export { InputError, type InputLocation } from './errors/input-error.js';
 export { OutputError } from './errors/output-error.js';
 export { UsageError } from './errors/usage-error.js';
+export { ANALYSIS_JSON_VERSION, analysisJsonSchema, analysisToJson } from './figures/analysis-json.js';
+export {
+  ANALYSIS_FIGURES,
+  CAPTURE_FIGURES,
+  type ColumnKind,
+  type ErrorCountsJson,
+  type Figure,
+  type FigureKind,
+  type FigureValue,
+  POLARIZATION_FIGURES,
+  type PolarizationOf,
+  type PresentedLinewidth,
+  presentedLinewidth,
+  QUALITY_FIGURES,
+  RESULT_COLUMN_SPECS,
+  type ResultColumnSpec,
+} from './figures/figure-schema.js';
+export { FIGURE_COLUMNS, type FigureColumn, type NumberText } from './figures/figure-table.js';
 export {
   type CaptureColumn,
   type ChannelFiles,

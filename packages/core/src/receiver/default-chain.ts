@@ -1,30 +1,47 @@
-import { type CoarseFrequencyOptions, coarseFrequencyShift } from '../carrier/coarse-frequency-stage.js';
-import { type FrequencyOffsetOptions, frequencyOffsetRecovery } from '../carrier/frequency-offset-stage.js';
-import { blindPhaseSearch, viterbiViterbi } from '../carrier/phase-recovery-stage.js';
+import {
+  type CoarseFrequencyDiagnostics,
+  type CoarseFrequencyOptions,
+  coarseFrequencyShift,
+} from '../carrier/coarse-frequency-stage.js';
+import {
+  type FrequencyOffsetDiagnostics,
+  type FrequencyOffsetOptions,
+  frequencyOffsetRecovery,
+} from '../carrier/frequency-offset-stage.js';
+import { blindPhaseSearch, type PhaseRecoveryDiagnostics, viterbiViterbi } from '../carrier/phase-recovery-stage.js';
 import type { BlindDispersionOptions } from '../dispersion/blind-dispersion.js';
-import { compensateDispersion } from '../dispersion/compensate-dispersion.js';
+import { type CompensateDispersionDiagnostics, compensateDispersion } from '../dispersion/compensate-dispersion.js';
 import { cdTapCount } from '../dispersion/dispersion-filter.js';
-import { type DecisionEqualizerOptions, decisionEqualizer } from '../equalizer/decision-equalizer.js';
-import { butterflyEqualizer, type EqualizerOptions } from '../equalizer/equalizer.js';
-import { combineChannels } from '../frontend/combine-channels.js';
-import { deskewChannels } from '../frontend/deskew-channels.js';
-import { type NormalizeChannelsOptions, normalizeChannels } from '../frontend/normalize-channels.js';
-import { type OrthogonalizeIqOptions, orthogonalizeIq } from '../frontend/orthogonalize-iq.js';
+import {
+  type DecisionEqualizerDiagnostics,
+  type DecisionEqualizerOptions,
+  decisionEqualizer,
+} from '../equalizer/decision-equalizer.js';
+import { butterflyEqualizer, type EqualizerDiagnostics, type EqualizerOptions } from '../equalizer/equalizer.js';
+import { type CombineDiagnostics, combineChannels } from '../frontend/combine-channels.js';
+import { type DeskewChannelsDiagnostics, deskewChannels } from '../frontend/deskew-channels.js';
+import {
+  type NormalizeChannelsDiagnostics,
+  type NormalizeChannelsOptions,
+  normalizeChannels,
+} from '../frontend/normalize-channels.js';
+import { type OrthogonalizeIqDiagnostics, type OrthogonalizeIqOptions, orthogonalizeIq } from '../frontend/orthogonalize-iq.js';
 import { MODULATIONS, type ModulationName } from '../modulation/constellation.js';
-import type { BlockOf } from '../pipeline/blocks.js';
+import type { BlockOf, Domain } from '../pipeline/blocks.js';
 import { pipe } from '../pipeline/pipe.js';
 import { type AnyStage, type JsonValue, OptionError, type Stage, type StageRecord } from '../pipeline/stage.js';
-import { rrcMatchedFilter } from '../resample/matched-filter.js';
-import { resampleToTwoSps } from '../resample/resampler.js';
+import { type MatchedFilterDiagnostics, rrcMatchedFilter } from '../resample/matched-filter.js';
+import { type ResampleDiagnostics, resampleToTwoSps } from '../resample/resampler.js';
 import type { ChannelName } from '../signal/dual-pol.js';
-import { type GardnerOptions, gardnerClockRecovery } from '../timing/gardner-clock-recovery.js';
+import { type GardnerDiagnostics, type GardnerOptions, gardnerClockRecovery } from '../timing/gardner-clock-recovery.js';
 
 const NAME = 'default-receiver';
 
 /**
- * The stages of the default chain, by slot, in order. Each slot holds any
- * stage of the slot's domains, so a researcher can swap one algorithm (for
- * example blind phase search for Viterbi–Viterbi) and keep the rest.
+ * The slots of a receiver chain, in order, each holding any stage of the
+ * slot's domains (with diagnostics of any type), so that a researcher can
+ * swap one algorithm (for example blind phase search for Viterbi–Viterbi)
+ * and keep the rest.
  */
 export interface ReceiverStages {
   /** DC removal, power normalization, clipping check (channels → channels). */
@@ -55,8 +72,51 @@ export interface ReceiverStages {
   readonly decisionEqualizer: Stage<'symbols', 'symbols', unknown> | null;
 }
 
-/** What the default chain needs to know about a capture, and its options. */
-export interface ReceiverSettings {
+/** The default chain's own stages, with their diagnostics types. */
+export interface DefaultReceiverStages extends ReceiverStages {
+  readonly normalize: Stage<'channels', 'channels', NormalizeChannelsDiagnostics>;
+  readonly orthogonalize: Stage<'channels', 'channels', OrthogonalizeIqDiagnostics>;
+  readonly deskew: Stage<'channels', 'channels', DeskewChannelsDiagnostics> | null;
+  readonly combine: Stage<'channels', 'field', CombineDiagnostics>;
+  readonly coarseFrequency: Stage<'twoSps', 'twoSps', CoarseFrequencyDiagnostics>;
+  readonly resample: Stage<'field', 'twoSps', ResampleDiagnostics>;
+  readonly dispersion: Stage<'twoSps', 'twoSps', CompensateDispersionDiagnostics>;
+  readonly matchedFilter: Stage<'twoSps', 'twoSps', MatchedFilterDiagnostics>;
+  readonly timing: Stage<'twoSps', 'twoSps', GardnerDiagnostics>;
+  readonly equalizer: Stage<'twoSps', 'symbols', EqualizerDiagnostics>;
+  readonly frequency: Stage<'symbols', 'symbols', FrequencyOffsetDiagnostics>;
+  readonly phase: Stage<'symbols', 'symbols', PhaseRecoveryDiagnostics>;
+  readonly decisionEqualizer: Stage<'symbols', 'symbols', DecisionEqualizerDiagnostics> | null;
+}
+
+/** Stages given in place of the chain's own, by slot. */
+export type ReplacedStages = Partial<ReceiverStages>;
+
+/** No stage replaced: the default of the chain's type parameter. */
+export type NoReplacement = Record<never, never>;
+
+/** The chain's stages once `R` replaced some: the replacements' types where given, the default ones elsewhere. */
+export type StagesWith<R extends ReplacedStages> = Omit<DefaultReceiverStages, keyof R> & {
+  readonly [K in keyof R & keyof ReceiverStages]-?: Exclude<R[K], undefined>;
+};
+
+/** The diagnostics of a slot's stage (null for an absent one). */
+export type SlotDiagnostics<S> = S extends Stage<Domain, Domain, infer D> ? D : null;
+
+/**
+ * Named diagnostics of every stage of a chain, typed by its stages (null for
+ * an absent deskew or decision equalizer).
+ */
+export type ReceiverDiagnostics<S extends ReceiverStages = DefaultReceiverStages> = {
+  readonly [K in keyof ReceiverStages]: SlotDiagnostics<S[K]>;
+};
+
+/**
+ * What the default chain needs to know about a capture, and its options;
+ * `R` is the type of the stages given in place of the chain's own (none by
+ * default), which types the chain's diagnostics.
+ */
+export interface ReceiverSettings<R extends ReplacedStages = NoReplacement> {
   /** The transmitted modulation. */
   readonly modulation: ModulationName;
   /** Symbol rate, Bd. */
@@ -112,16 +172,14 @@ export interface ReceiverSettings {
     };
   };
   /** Stages that replace the chain's own, by slot. */
-  readonly replace?: Partial<ReceiverStages>;
+  readonly replace?: R;
 }
 
-/** Named diagnostics of every stage of the chain (null for an absent deskew). */
-export type ReceiverDiagnostics = { readonly [K in keyof ReceiverStages]: unknown };
-
-/** The default receiver chain: a stage from the four channels to recovered symbols. */
-export interface ReceiverChain extends Stage<'channels', 'symbols', ReceiverDiagnostics> {
+/** The default receiver chain: a stage from the four channels to recovered symbols, its diagnostics typed by its stages. */
+export interface ReceiverChain<S extends ReceiverStages = DefaultReceiverStages>
+  extends Stage<'channels', 'symbols', ReceiverDiagnostics<S>> {
   /** The stages by slot, for their typed diagnostics and options. */
-  readonly stages: ReceiverStages;
+  readonly stages: S;
   /** The settings after defaults were applied. */
   readonly settings: ResolvedReceiverSettings;
 }
@@ -196,10 +254,12 @@ const BLIND_RESIDUAL_PS_PER_NM = 50;
  * @throws OptionError for settings out of range (and whatever a stage throws for its options)
  * @example const rx = defaultReceiver({ modulation: '16qam', symbolRate: 32e9, sampleRate: 80e9 });
  */
-export function defaultReceiver(settings: ReceiverSettings): ReceiverChain {
+export function defaultReceiver<R extends ReplacedStages = NoReplacement>(
+  settings: ReceiverSettings<R>,
+): ReceiverChain<StagesWith<R>> {
   const s = resolve(settings);
   const o = settings.options ?? {};
-  const r = settings.replace ?? {};
+  const r: ReplacedStages = settings.replace ?? {};
   // One phase for both polarizations, over a window chosen for the SNR and
   // phase noise of the capture: a fixed window is either too short at low
   // SNR (slips) or too long for wide linewidths. Measured: 16QAM at 12 dB
@@ -248,10 +308,11 @@ export function defaultReceiver(settings: ReceiverSettings): ReceiverChain {
           ? decisionEqualizer({ taps: DECISION_EQUALIZER_TAPS, ...(o.decisionEqualizer || {}), modulation: s.modulation })
           : null,
   };
-  return new Chain(stages, s);
+  // The replacements' own types are what StagesWith<R> says, slot by slot.
+  return new Chain(stages as unknown as StagesWith<R>, s);
 }
 
-function resolve(settings: ReceiverSettings): ResolvedReceiverSettings {
+function resolve(settings: ReceiverSettings<ReplacedStages>): ResolvedReceiverSettings {
   const fail = (option: string, expected: string, received: unknown): never => {
     throw new OptionError(NAME, option, expected, received);
   };
@@ -308,14 +369,14 @@ const SLOTS: readonly (keyof ReceiverStages)[] = [
   'decisionEqualizer',
 ];
 
-class Chain implements ReceiverChain {
+class Chain<S extends ReceiverStages> implements ReceiverChain<S> {
   readonly name = NAME;
   readonly input = 'channels' as const;
   readonly output = 'symbols' as const;
   private readonly inner: AnyStage;
 
   constructor(
-    readonly stages: ReceiverStages,
+    readonly stages: S,
     readonly settings: ResolvedReceiverSettings,
   ) {
     const s = stages;
@@ -346,10 +407,11 @@ class Chain implements ReceiverChain {
     this.inner.reset();
   }
 
-  diagnostics(): ReceiverDiagnostics {
+  diagnostics(): ReceiverDiagnostics<S> {
     const out: Record<string, unknown> = {};
     for (const slot of SLOTS) out[slot] = this.stages[slot]?.diagnostics() ?? null;
-    return out as unknown as ReceiverDiagnostics;
+    // Each slot holds its stage's diagnostics, which is what ReceiverDiagnostics<S> spells out.
+    return out as ReceiverDiagnostics<S>;
   }
 
   describe(): StageRecord {

@@ -1,16 +1,12 @@
 import { join } from 'node:path';
 import { MODULATIONS } from '@intradyne/core';
-import {
-  type AnalysisSettings,
-  analysisToJson,
-  analyzeOpenCapture,
-  type FileAnalysis,
-  presentedLinewidth,
-  readPipelineFile,
-} from '../analysis/analyze-file.js';
+import { type AnalysisSettings, analyzeOpenCapture, type FileAnalysis, readPipelineFile } from '../analysis/analyze-file.js';
 import { stageSymbolsArrowStreaming } from '../arrow/arrow-write.js';
 import { openCapture } from '../capture/capture.js';
 import { LIMITS, rateProblem } from '../capture/limits.js';
+import { analysisToJson } from '../figures/analysis-json.js';
+import { presentedLinewidth } from '../figures/figure-schema.js';
+import { BOUND_NOTE, figureRows, textNumber } from '../figures/figure-table.js';
 import { analysisReport } from '../report/analysis-report.js';
 import { checkReportPath, stageReport } from '../report/write-report.js';
 import {
@@ -198,48 +194,27 @@ export function analyzeCommand(argv: readonly string[], out: (s: string) => void
   return EXIT.done;
 }
 
-const fmt = (v: number | null | undefined, digits = 3): string =>
-  v === null || v === undefined || !Number.isFinite(v)
-    ? '–'
-    : Math.abs(v) < 1e-2 && v !== 0
-      ? v.toExponential(2)
-      : v.toFixed(digits);
+const fmt = textNumber;
 
 /** The human-readable summary of one analysis. */
 export function summary({ capture, result }: FileAnalysis): string {
   const lines = [`${capture.name}: ${capture.modulation} at ${capture.symbolRate / 1e9} GBd, ${capture.sampleRate / 1e9} GSa/s`];
-  if (!result.ok) {
+  const m = result.measurement;
+  if (!result.ok || m === null) {
     lines.push(`analysis failed (${result.failure?.check}): ${result.failure?.reason}`);
     return `${lines.join('\n')}\n`;
   }
-  const m = result.measurement!;
-  // A BER without errors is the upper end of its interval, and Q from it a lower bound: marked so.
-  const row = (label: string, f: typeof m | typeof m.perPol.x) => [
-    label,
-    `${f.berIsUpperBound ? '< ' : ''}${fmt(f.ber)}`,
-    `${fmt(f.berCi95[0])} – ${fmt(f.berCi95[1])}`,
-    `${f.bitErrors}/${f.bits}`,
-    fmt(100 * f.evmRms, 2),
-    fmt(f.snrDb, 2),
-    `${f.berIsUpperBound && f.qDb !== null ? '> ' : ''}${fmt(f.qDb, 2)}`,
-    fmt(f.gmi, 3),
-    fmt(f.ngmi, 4),
-  ];
-  lines.push(
-    table(
-      ['', 'BER', '95 % interval', 'errors/bits', 'EVM %', 'SNR dB', 'Q dB', 'GMI b', 'NGMI'],
-      [row('total', m), row('x', m.perPol.x), row('y', m.perPol.y)],
-    ).trimEnd(),
-  );
-  const cd = result.diagnostics.dispersion as { dispersionPsPerNm?: number; estimated?: boolean } | null;
+  const { headings, rows } = figureRows(m, fmt);
+  lines.push(table(headings, rows).trimEnd());
+  const cd = result.diagnostics.dispersion;
   const lw = presentedLinewidth(result.linewidthHz);
   const linewidth = lw.linewidthBelowResolution
     ? "linewidth below the estimate's resolution"
     : `linewidth ${fmt(lw.linewidthHz === null ? null : lw.linewidthHz / 1e3, 0)} kHz`;
-  if (m.berIsUpperBound) lines.push('no bit error counted: "<" marks the upper end of the 95 % interval, ">" the Q from it');
+  if (m.berIsUpperBound) lines.push(BOUND_NOTE);
   lines.push(
     `frequency offset ${fmt(result.freqOffsetHz / 1e6, 1)} MHz, ${linewidth}, ` +
-      `cycle slips ${result.cycleSlips.count}, dispersion ${fmt(cd?.dispersionPsPerNm, 0)} ps/nm${cd?.estimated ? ' (estimated)' : ''}, ` +
+      `cycle slips ${result.cycleSlips.count}, dispersion ${fmt(cd.dispersionPsPerNm, 0)} ps/nm${cd.estimated ? ' (estimated)' : ''}, ` +
       `penalty against theory ${fmt(result.implementationPenaltyDb, 2)} dB`,
   );
   const turned = m.slipCorrection.turnedBlocks.x + m.slipCorrection.turnedBlocks.y;

@@ -3,6 +3,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { analyzeFile } from '../analysis/analyze-file.js';
 import { outputFailure } from '../errors/file-system.js';
+import { figureColumns, textNumber } from '../figures/figure-table.js';
 import { runScenario } from '../scenarios/run.js';
 import { builtInScenario } from '../scenarios/scenario.js';
 import { parseCommandArgs } from './args.js';
@@ -36,29 +37,26 @@ export function demoCommand(argv: readonly string[], out: (s: string) => void, e
   try {
     out(`${scenario.description}\n\n`);
     const written = runScenario(scenario, dir, { onCapture: (w, i, n) => err(`simulated ${i + 1}/${n}: ${w.name}\n`) });
+    const figures = figureColumns('BER', '95 % interval', 'SNR dB', 'GMI b', 'NGMI');
     const rows = written.map((w, i) => {
       err(`analysing ${i + 1}/${written.length}: ${w.name}\n`);
       const { result } = analyzeFile(w.data);
       const osnr = String(w.options.channel?.osnrDb ?? '');
       if (!result.ok) {
         failed++;
-        return [w.name, osnr, `failed: ${result.failure?.check}`, '', '', '', '', '', ''];
+        return [w.name, osnr, `failed: ${result.failure?.check}`, ...figures.slice(1).map(() => ''), '', ''];
       }
-      const m = result.measurement!;
-      const cd = result.diagnostics.dispersion as { dispersionPsPerNm: number };
+      const m = result.measurement;
+      if (m === null) throw new Error('a measured analysis without its measurement');
       return [
         w.name,
         osnr,
-        m.berIsUpperBound ? `< ${m.ber.toExponential(2)}` : m.ber.toExponential(2),
-        `${m.berCi95[0] === 0 ? '0' : m.berCi95[0].toExponential(2)}–${m.berCi95[1].toExponential(2)}`,
-        m.snrDb.toFixed(2),
-        m.gmi.toFixed(3),
-        m.ngmi.toFixed(4),
-        (result.freqOffsetHz / 1e9).toFixed(3),
-        cd.dispersionPsPerNm.toFixed(0),
+        ...figures.map((c) => c.cell(m, textNumber)),
+        textNumber(result.freqOffsetHz / 1e9, 3),
+        textNumber(result.diagnostics.dispersion.dispersionPsPerNm, 0),
       ];
     });
-    out(table(['capture', 'OSNR dB', 'BER', 'BER 95 %', 'SNR dB', 'GMI b', 'NGMI', 'offset GHz', 'CD ps/nm'], rows));
+    out(table(['capture', 'OSNR dB', ...figures.map((c) => c.heading), 'offset GHz', 'CD ps/nm'], rows));
     out(
       '\nBER pre-FEC with its exact (Clopper–Pearson) 95 % interval, "< x" when no error was seen; ' +
         'SNR data-aided (Es/N0); GMI in bits per symbol and polarization.\n',

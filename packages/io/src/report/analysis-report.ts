@@ -1,7 +1,8 @@
 import { basename } from 'node:path';
-import type { EqualizerDiagnostics, FrequencyOffsetDiagnostics, PhaseRecoveryDiagnostics } from '@intradyne/core';
-import type { QualityFigures } from '@intradyne/metrics';
-import { analysisToJson, type FileAnalysis, presentedLinewidth } from '../analysis/analyze-file.js';
+import type { FileAnalysis } from '../analysis/analyze-file.js';
+import { analysisToJson } from '../figures/analysis-json.js';
+import { presentedLinewidth } from '../figures/figure-schema.js';
+import { BOUND_NOTE, FIGURE_COLUMNS, figureRows } from '../figures/figure-table.js';
 import { frequencyTrackPlot, phasePlot } from './carrier-plot.js';
 import { densityPlot } from './density-plot.js';
 import { convergencePlots, tapsPlot } from './equalizer-plots.js';
@@ -23,14 +24,15 @@ export function analysisReport(analysis: FileAnalysis): string {
   const { capture, result } = analysis;
   const m = result.measurement;
   const rec = result.record;
+  // The headline: a few columns of the figures table, for the totals.
+  const headline = ['BER', 'SNR dB', 'GMI b', 'NGMI', 'EVM %'];
   const figures: [string, string][] = m
     ? [
-        ['BER', `${m.berIsUpperBound ? '< ' : ''}${m.ber.toExponential(2)}`],
-        ['SNR', `${m.snrDb.toFixed(2)} dB`],
-        ['GMI', `${m.gmi.toFixed(3)} b`],
-        ['NGMI', m.ngmi.toFixed(4)],
-        ['EVM', `${(100 * m.evmRms).toFixed(2)} %`],
-        ['offset', `${(result.freqOffsetHz / 1e6).toFixed(1)} MHz`],
+        ...FIGURE_COLUMNS.filter((c) => headline.includes(c.heading)).map((c): [string, string] => [
+          c.heading,
+          c.cell(m, reportNumber),
+        ]),
+        ['offset MHz', formatNumber(result.freqOffsetHz / 1e6)],
         ['slips', String(result.cycleSlips.count)],
       ]
     : [];
@@ -80,9 +82,8 @@ function constellationSection({ result }: FileAnalysis): ReportSection {
 }
 
 function equalizerSection({ result }: FileAnalysis): ReportSection {
-  const eq = result.diagnostics.equalizer as EqualizerDiagnostics | null;
-  // A replaced equalizer may report other diagnostics.
-  if (!eq?.finalTaps || !eq.trace)
+  const eq = result.diagnostics.equalizer;
+  if (!eq.finalTaps || !eq.trace)
     return { id: 'equalizer', heading: 'Equalizer', body: absent('butterfly-equalizer diagnostics') };
   const [cost, separation] = convergencePlots(eq);
   const c = eq.convergence;
@@ -105,12 +106,12 @@ function equalizerSection({ result }: FileAnalysis): ReportSection {
 }
 
 function carrierSection({ capture, result }: FileAnalysis): ReportSection {
-  const phase = result.diagnostics.phase as PhaseRecoveryDiagnostics | null;
-  if (!phase?.phaseTrace || phase.phaseTrace.x.length === 0)
+  const phase = result.diagnostics.phase;
+  if (!phase.phaseTrace || phase.phaseTrace.x.length === 0)
     return { id: 'carrier', heading: 'Carrier phase', body: absent('carrier-phase trace') };
   // A tracking frequency stage gives one estimate per span: worth a picture of its own.
-  const track = (result.diagnostics.frequency as FrequencyOffsetDiagnostics | null)?.track ?? [];
-  const coarse = (result.diagnostics.coarseFrequency as { freqOffsetHz?: number } | null)?.freqOffsetHz ?? 0;
+  const track = result.diagnostics.frequency.track;
+  const coarse = result.diagnostics.coarseFrequency.freqOffsetHz;
   const trackPlot =
     track.length > 1 ? [figure(frequencyTrackPlot(track, capture.symbolRate, Number.isFinite(coarse) ? coarse : 0))] : [];
   const known = (v: number | null, scale: number, unit: string) =>
@@ -149,26 +150,10 @@ function spectrumSection({ result }: FileAnalysis): ReportSection {
 function valuesSection(analysis: FileAnalysis): ReportSection {
   const { result } = analysis;
   const m = result.measurement;
-  // A BER without errors is the upper end of its interval, and Q from it a lower bound: marked so.
-  const row = (label: string, f: QualityFigures) => [
-    label,
-    `${f.berIsUpperBound ? '< ' : ''}${formatNumber(f.ber)}`,
-    `${formatNumber(f.berCi95[0])} – ${formatNumber(f.berCi95[1])}`,
-    `${f.bitErrors} / ${f.bits}`,
-    formatNumber(100 * f.evmRms),
-    formatNumber(f.snrDb),
-    f.qDb === null ? '–' : `${f.berIsUpperBound ? '> ' : ''}${formatNumber(f.qDb)}`,
-    formatNumber(f.gmi),
-    formatNumber(f.ngmi),
-  ];
   // The record has its own section.
   const rest = Object.fromEntries(Object.entries(analysisToJson(analysis)).filter(([k]) => k !== 'record'));
   const notes = [
-    ...(m?.berIsUpperBound
-      ? [
-          'No bit error was counted: the BER marked "<" is the upper end of its 95 % interval, and the Q marked ">" is computed from it.',
-        ]
-      : []),
+    ...(m?.berIsUpperBound ? [`${BOUND_NOTE[0].toUpperCase()}${BOUND_NOTE.slice(1)}.`] : []),
     ...analysis.capture.warnings.map((w) => `Warning: ${w}`),
   ];
   return {
@@ -177,10 +162,7 @@ function valuesSection(analysis: FileAnalysis): ReportSection {
     note: notes.length > 0 ? notes.join(' ') : undefined,
     body: join([
       m
-        ? gridTable(
-            ['', 'BER', '95 % interval', 'errors / bits', 'EVM %', 'SNR dB', 'Q dB', 'GMI b', 'NGMI'],
-            [row('total', m), row('x', m.perPol.x), row('y', m.perPol.y)],
-          )
+        ? gridTable(...tableOf(figureRows(m, reportNumber)))
         : el('p', { class: 'note' }, text(`The analysis failed (${result.failure?.check}): ${result.failure?.reason}`)),
       el('div', { style: 'height:12px' }),
       valueTable(flattenValues(rest)),
@@ -207,4 +189,13 @@ function recordSection({ result }: FileAnalysis): ReportSection {
       el('pre', { class: 'record' }, text(JSON.stringify(rec.pipeline, null, 2))),
     ]),
   };
+}
+
+/** A number in the report: six significant digits whatever the column's (the page has room). */
+function reportNumber(v: number | null): string {
+  return v === null ? '–' : formatNumber(v);
+}
+
+function tableOf(t: { headings: string[]; rows: string[][] }): [string[], string[][]] {
+  return [t.headings, t.rows];
 }

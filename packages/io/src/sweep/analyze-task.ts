@@ -1,4 +1,4 @@
-import { type AnalysisSettings, analysisToJson, analyzeFile } from '../analysis/analyze-file.js';
+import { type AnalysisSettings, analyzeFile } from '../analysis/analyze-file.js';
 import { InputError } from '../errors/input-error.js';
 import { UsageError } from '../errors/usage-error.js';
 import { captureInputHash } from './input-hash.js';
@@ -48,8 +48,8 @@ export function runSweepTask(task: SweepTask, settings: AnalysisSettings): Sweep
   const inputSha256 = captureInputHash(task.path);
   if (inputSha256 !== null && inputSha256 === task.storedInputSha256) return { kind: 'skipped', key: task.key, inputSha256 };
   try {
-    const json = analysisToJson(analyzeFile(task.path, settings));
-    return { kind: 'analysed', key: task.key, inputSha256, row: rowFromAnalysis(task.key, json, inputSha256), store: true };
+    const row = rowFromAnalysis(task.key, analyzeFile(task.path, settings), inputSha256);
+    return { kind: 'analysed', key: task.key, inputSha256, row, store: true };
   } catch (e) {
     const input = e instanceof InputError || e instanceof UsageError;
     const message = input ? (e as Error).message : `${(e as Error).name}: ${(e as Error).message}`;

@@ -1,11 +1,21 @@
+import type { FileAnalysis } from '../analysis/analyze-file.js';
 import type { ResultRow } from '../arrow/arrow-write.js';
+import {
+  ANALYSIS_FIGURES,
+  CAPTURE_FIGURES,
+  type ColumnKind,
+  figureCells,
+  QUALITY_FIGURES,
+  RESULT_COLUMN_SPECS,
+} from '../figures/figure-schema.js';
 import { pipelineFingerprint } from './fingerprint.js';
 
 /**
- * The columns of a sweep's results table, in order. Rates in Bd and Sa/s,
- * frequencies in Hz, SNR and Q in dB, GMI and MI in bits per symbol (both
- * polarizations for the totals, one for the `x_`/`y_` columns), EVM as a
- * fraction. `failure_check` is the failed check ('equalizer', 'reference',
+ * The columns of a sweep's results table, in order, made from the figure
+ * schema (`RESULT_COLUMN_SPECS`). Rates in Bd and Sa/s, frequencies in Hz,
+ * SNR and Q in dB, GMI and MI in bits per symbol (both polarizations for
+ * the totals, one for the `x_`/`y_` columns), EVM as a fraction.
+ * `failure_check` is the failed check ('equalizer', 'reference',
  * 'modulation', 'length'; 'input' for a capture that could not be read;
  * 'error' for an unexpected error) and `failure_reason` why; the figures are
  * empty then. `warnings` holds what the analysis noticed without failing
@@ -17,137 +27,64 @@ import { pipelineFingerprint } from './fingerprint.js';
  * `captureInputHash`), `samples_sha256` the samples analysed, and
  * `pipeline_sha256` the library version and chain (see `pipelineFingerprint`).
  */
-export const RESULT_COLUMNS = [
-  'capture',
-  'modulation',
-  'symbol_rate_bd',
-  'sample_rate_sas',
-  'ok',
-  'failure_check',
-  'failure_reason',
-  'warnings',
-  'ber',
-  'ber_is_upper_bound',
-  'ber_ci95_lo',
-  'ber_ci95_hi',
-  'bit_errors',
-  'bits',
-  'ser',
-  'evm_rms',
-  'snr_db',
-  'q_db',
-  'q_db_is_lower_bound',
-  'gmi',
-  'ngmi',
-  'mi',
-  'freq_offset_hz',
-  'cycle_slips',
-  'implementation_penalty_db',
-  'x_ber',
-  'x_ber_is_upper_bound',
-  'x_snr_db',
-  'x_gmi',
-  'y_ber',
-  'y_ber_is_upper_bound',
-  'y_snr_db',
-  'y_gmi',
-  'input_sha256',
-  'samples_sha256',
-  'pipeline_sha256',
-] as const;
+export const RESULT_COLUMNS: readonly string[] = RESULT_COLUMN_SPECS.map((c) => c.name);
 
 /** One column name of the results table. */
-export type ResultColumn = (typeof RESULT_COLUMNS)[number];
+export type ResultColumn = string;
+
+const KINDS: ReadonlyMap<string, ColumnKind> = new Map(RESULT_COLUMN_SPECS.map((c) => [c.name, c.kind]));
+
+const columnsOfKind = (kind: ColumnKind): ReadonlySet<ResultColumn> =>
+  new Set(RESULT_COLUMN_SPECS.filter((c) => c.kind === kind).map((c) => c.name));
 
 /** The columns that hold text. */
-export const TEXT_COLUMNS: ReadonlySet<ResultColumn> = new Set<ResultColumn>([
-  'capture',
-  'modulation',
-  'failure_check',
-  'failure_reason',
-  'warnings',
-  'input_sha256',
-  'samples_sha256',
-  'pipeline_sha256',
-]);
+export const TEXT_COLUMNS: ReadonlySet<ResultColumn> = columnsOfKind('text');
 
 /** The columns that hold true or false (Bool in Arrow, `true`/`false` in CSV). */
-export const BOOLEAN_COLUMNS: ReadonlySet<ResultColumn> = new Set<ResultColumn>([
-  'ok',
-  'ber_is_upper_bound',
-  'q_db_is_lower_bound',
-  'x_ber_is_upper_bound',
-  'y_ber_is_upper_bound',
-]);
+export const BOOLEAN_COLUMNS: ReadonlySet<ResultColumn> = columnsOfKind('boolean');
 
 /** The columns that hold counts (Int64 in Arrow). */
-export const INTEGER_COLUMNS: ReadonlySet<ResultColumn> = new Set<ResultColumn>(['bit_errors', 'bits', 'cycle_slips']);
+export const INTEGER_COLUMNS: ReadonlySet<ResultColumn> = columnsOfKind('integer');
 
 /** What a column holds: text, a boolean, a count, or any other number (float64). */
-export function columnKind(c: ResultColumn): 'text' | 'boolean' | 'integer' | 'number' {
-  return TEXT_COLUMNS.has(c) ? 'text' : BOOLEAN_COLUMNS.has(c) ? 'boolean' : INTEGER_COLUMNS.has(c) ? 'integer' : 'number';
+export function columnKind(c: ResultColumn): ColumnKind {
+  const kind = KINDS.get(c);
+  if (kind === undefined) throw new RangeError(`columnKind: '${c}' is not a column of the results table`);
+  return kind;
 }
+
 /** One row of the results table: a value (or null) per column. */
 export type SweepRow = Readonly<Record<ResultColumn, number | string | boolean | null>> & ResultRow;
 
-type Figures = { ber: number | null; berIsUpperBound: boolean | null; snrDb: number | null; gmi: number | null };
+type Cell = number | string | boolean | null;
 
-const emptyRow = (): Record<ResultColumn, number | string | boolean | null> =>
-  Object.fromEntries(RESULT_COLUMNS.map((c) => [c, null])) as Record<ResultColumn, number | string | boolean | null>;
+const emptyRow = (): Record<ResultColumn, Cell> => Object.fromEntries(RESULT_COLUMNS.map((c) => [c, null]));
 
 /**
- * A results row from the flat JSON of one analysis (`analysisToJson`).
+ * A results row of one analysis, every cell from the figure schema.
  * @param key the capture's path relative to the sweep root
  * @param inputSha256 the capture's input hash (null when it could not be read)
  */
-export function rowFromAnalysis(key: string, json: Record<string, unknown>, inputSha256: string | null): SweepRow {
-  const j = json as Record<string, never> & {
-    failure: { check: string; reason: string } | null;
-    warnings: string[] | undefined;
-    berCi95: [number | null, number | null] | null;
-    perPol: { x: Figures; y: Figures } | null;
-    record: { version: string; pipeline: unknown; inputSha256: string };
-  };
+export function rowFromAnalysis(key: string, analysis: FileAnalysis, inputSha256: string | null): SweepRow {
+  const { result } = analysis;
+  const m = result.measurement;
+  const cells: [string, unknown][] = [
+    ['capture', key],
+    ...CAPTURE_FIGURES.flatMap((f) => figureCells(f, analysis)),
+    ['failure_check', result.failure?.check ?? null],
+    ['failure_reason', result.failure?.reason ?? null],
+    ['warnings', analysis.capture.warnings.length > 0 ? analysis.capture.warnings.join('; ') : null],
+    ...QUALITY_FIGURES.flatMap((f) => figureCells(f, m)),
+    ...ANALYSIS_FIGURES.flatMap((f) => figureCells(f, analysis)),
+    ...(['x', 'y'] as const).flatMap((p) =>
+      QUALITY_FIGURES.filter((f) => f.perPolColumn).flatMap((f) => figureCells(f, m ? m.perPol[p] : null, `${p}_`)),
+    ),
+    ['input_sha256', inputSha256],
+    ['samples_sha256', result.record.inputSha256],
+    ['pipeline_sha256', pipelineFingerprint(result.record.version, result.record.pipeline)],
+  ];
   const row = emptyRow();
-  Object.assign(row, {
-    capture: key,
-    modulation: j.modulation,
-    symbol_rate_bd: j.symbolRate,
-    sample_rate_sas: j.sampleRate,
-    ok: j.ok,
-    failure_check: j.failure?.check ?? null,
-    failure_reason: j.failure?.reason ?? null,
-    warnings: j.warnings && j.warnings.length > 0 ? j.warnings.join('; ') : null,
-    ber: j.ber,
-    ber_is_upper_bound: j.berIsUpperBound ?? null,
-    ber_ci95_lo: j.berCi95?.[0] ?? null,
-    ber_ci95_hi: j.berCi95?.[1] ?? null,
-    bit_errors: j.bitErrors,
-    bits: j.bits,
-    ser: j.ser,
-    evm_rms: j.evmRms,
-    snr_db: j.snrDb,
-    q_db: j.qDb,
-    q_db_is_lower_bound: j.qIsLowerBound ?? null,
-    gmi: j.gmi,
-    ngmi: j.ngmi,
-    mi: j.mi,
-    freq_offset_hz: j.freqOffsetHz,
-    cycle_slips: j.cycleSlips,
-    implementation_penalty_db: j.implementationPenaltyDb,
-    x_ber: j.perPol?.x.ber ?? null,
-    x_ber_is_upper_bound: j.perPol?.x.berIsUpperBound ?? null,
-    x_snr_db: j.perPol?.x.snrDb ?? null,
-    x_gmi: j.perPol?.x.gmi ?? null,
-    y_ber: j.perPol?.y.ber ?? null,
-    y_ber_is_upper_bound: j.perPol?.y.berIsUpperBound ?? null,
-    y_snr_db: j.perPol?.y.snrDb ?? null,
-    y_gmi: j.perPol?.y.gmi ?? null,
-    input_sha256: inputSha256,
-    samples_sha256: j.record.inputSha256,
-    pipeline_sha256: pipelineFingerprint(j.record.version, j.record.pipeline),
-  });
-  for (const c of RESULT_COLUMNS) if (row[c] === undefined) row[c] = null;
+  for (const [c, v] of cells) row[c] = v as Cell;
   return row as SweepRow;
 }
 

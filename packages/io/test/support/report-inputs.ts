@@ -1,6 +1,6 @@
 import { copyFileSync, readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
-import { analysisToJson, analyzeFile, type FileAnalysis } from '../../src/analysis/analyze-file.js';
+import { analyzeFile, type FileAnalysis } from '../../src/analysis/analyze-file.js';
 import { rowFromAnalysis, rowFromError, type SweepRow } from '../../src/sweep/result-row.js';
 import { FIXTURES } from './temp.js';
 
@@ -25,7 +25,7 @@ export function hostileAnalysis(dir: string): FileAnalysis {
 /** Results rows of the three fixture captures (QPSK, 16QAM, 64QAM) and one failed row named with markup. */
 export function fixtureRows(): SweepRow[] {
   const rows = ['qpsk-clean', '16qam-scope', '64qam-time-column'].map((name) =>
-    rowFromAnalysis(`${name}.csv`, analysisToJson(analyzeFile(join(FIXTURES, `${name}.csv`))), 'f'.repeat(64)),
+    rowFromAnalysis(`${name}.csv`, analyzeFile(join(FIXTURES, `${name}.csv`)), 'f'.repeat(64)),
   );
   rows.push(rowFromError(`${HOSTILE_NAME}.csv`, 'input', `${HOSTILE_NOTES}: not a capture`, null));
   return rows;

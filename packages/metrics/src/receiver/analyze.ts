@@ -11,12 +11,15 @@ import {
   type FieldBlock,
   LIBRARY_VERSION,
   littleEndianBytes,
+  type NoReplacement,
   OptionError,
-  type ReceiverChain,
   type ReceiverDiagnostics,
   type ReceiverSettings,
+  type ReceiverStages,
+  type ReplacedStages,
   Sha256,
   type StageRecord,
+  type StagesWith,
 } from '@intradyne/core';
 import { ConstellationDensity, type ConstellationHistogram } from '../density/constellation-density.js';
 import { DEFAULT_FIT_SYMBOLS, type Measurement, MeasurementStream, ReferenceNotFoundError } from '../measure/measure.js';
@@ -169,8 +172,11 @@ export interface ReproducibilityRecord {
   readonly samples: number;
 }
 
-/** The result of {@link analyzeCapture}. */
-export interface AnalysisResult {
+/**
+ * The result of {@link analyzeCapture}; `D` is the chain's diagnostics,
+ * typed by its stages (the default chain's unless some were replaced).
+ */
+export interface AnalysisResult<D extends ReceiverDiagnostics<ReceiverStages> = ReceiverDiagnostics> {
   /** True when every check passed and `measurement` holds valid figures. */
   readonly ok: boolean;
   /** How the equalizer was adapted: 'blind', or 'data-aided' (trained on the transmitted symbols after a blind pass). */
@@ -192,7 +198,7 @@ export interface AnalysisResult {
   /** The modulation check; null when it was not reached. */
   readonly modulationFit: ModulationFit | null;
   /** What every stage of the chain reported, by slot. */
-  readonly diagnostics: ReceiverDiagnostics;
+  readonly diagnostics: D;
   /** Recovered symbols per polarization. */
   readonly symbols: number;
   /** The recovered symbols, when `keepSymbols` was set. */
@@ -223,12 +229,12 @@ export interface AnalysisResult {
  * @throws OptionError for bad settings or options; what a stage throws for malformed blocks
  * @example const r = analyzeCapture([block], { modulation: '16qam', symbolRate: 32e9, sampleRate: 80e9 }, ref); r.ok && r.measurement.ber;
  */
-export function analyzeCapture(
+export function analyzeCapture<R extends ReplacedStages = NoReplacement>(
   blocks: Iterable<ChannelBlock>,
-  settings: ReceiverSettings,
+  settings: ReceiverSettings<R>,
   reference: DualPol,
   options: AnalyzeOptions = {},
-): AnalysisResult {
+): AnalysisResult<ReceiverDiagnostics<StagesWith<R>>> {
   const training = options.equalizerTraining ?? 'blind';
   if (training !== 'blind' && training !== 'data-aided')
     throw new OptionError('analyze', 'equalizerTraining', "'blind' or 'data-aided'", training);
@@ -261,13 +267,13 @@ export function analyzeCapture(
   return analyzeOnce(blocks, { ...settings, options: { ...settings.options, equalizer } }, reference, options, 'data-aided');
 }
 
-function analyzeOnce(
+function analyzeOnce<R extends ReplacedStages>(
   blocks: Iterable<ChannelBlock>,
-  settings: ReceiverSettings,
+  settings: ReceiverSettings<R>,
   reference: DualPol,
   options: AnalyzeOptions,
   equalizerTraining: EqualizerTrainingMode,
-): AnalysisResult {
+): AnalysisResult<ReceiverDiagnostics<StagesWith<R>>> {
   const skipSymbols = options.skipSymbols ?? 2048;
   if (!Number.isInteger(skipSymbols) || skipSymbols < 0)
     throw new OptionError('analyze', 'skipSymbols', 'an integer ≥ 0', skipSymbols);
@@ -348,7 +354,10 @@ function analyzeOnce(
     plotData: density ? { constellation: density.result(), inputSpectra: spectra?.result() ?? null } : null,
     record,
   };
-  const failed = (failure: AnalysisFailure, fit: ModulationFit | null = null): AnalysisResult => ({
+  const failed = (
+    failure: AnalysisFailure,
+    fit: ModulationFit | null = null,
+  ): AnalysisResult<ReceiverDiagnostics<StagesWith<R>>> => ({
     ok: false,
     equalizerTraining,
     failure,
@@ -375,7 +384,7 @@ function analyzeOnce(
       else throw e;
     }
   }
-  const eq = equalizerVerdict(chain, m);
+  const eq = equalizerVerdict(diagnostics.equalizer, m);
   if (eq) return failed(eq);
   if (tooShort) {
     return failed({
@@ -427,20 +436,9 @@ const UNMEASURED_SEPARATION = 0.7;
  * instead of a fixed threshold; when they could not be measured, against
  * {@link UNMEASURED_SEPARATION}.
  */
-function equalizerVerdict(chain: ReceiverChain, m: Measurement | null): AnalysisFailure | null {
-  const d = chain.diagnostics().equalizer as {
-    convergence?: {
-      converged: boolean;
-      separationX: number;
-      separationY: number;
-      dependence: number;
-      threshold: number;
-      dependenceThreshold: number;
-      criterion: string;
-    };
-    singularity?: { singular: boolean; rowOrthogonality: number; criterion: string };
-  } | null;
-  if (!d?.convergence) return null; // a replaced equalizer that reports no verdict
+function equalizerVerdict(diagnostics: unknown, m: Measurement | null): AnalysisFailure | null {
+  const d = equalizerReport(diagnostics);
+  if (d === null) return null; // a replaced equalizer that reports no verdict
   const c = d.convergence;
   if (d.singularity?.singular) {
     return {
@@ -509,9 +507,35 @@ function sumKnown(a: number, b: number): number {
   return a + b;
 }
 
+/** The number a stage's diagnostics hold under `key` (NaN when the stage, a replaced one perhaps, reports none). */
 function numberField(d: unknown, key: string): number {
-  const v = (d as Record<string, unknown> | null)?.[key];
+  if (typeof d !== 'object' || d === null || !(key in d)) return Number.NaN;
+  const v: unknown = (d as Record<string, unknown>)[key];
   return typeof v === 'number' ? v : Number.NaN;
+}
+
+/** What the analysis reads of an equalizer's verdict on itself (the butterfly's diagnostics carry it). */
+interface EqualizerReport {
+  /** The convergence verdict. */
+  readonly convergence: {
+    readonly converged: boolean;
+    readonly separationX: number;
+    readonly separationY: number;
+    readonly dependence: number;
+    readonly threshold: number;
+    readonly dependenceThreshold: number;
+    readonly criterion: string;
+  };
+  /** The singularity check, when made. */
+  readonly singularity?: { readonly singular: boolean; readonly rowOrthogonality: number; readonly criterion: string };
+}
+
+/** An equalizer's diagnostics as an {@link EqualizerReport}, or null for one that reports no verdict. */
+function equalizerReport(d: unknown): EqualizerReport | null {
+  if (typeof d !== 'object' || d === null || !('convergence' in d)) return null;
+  const c: unknown = d.convergence;
+  if (typeof c !== 'object' || c === null || !('converged' in c) || typeof c.converged !== 'boolean') return null;
+  return d as EqualizerReport;
 }
 
 /** Hashes a block as rows (xi, xq, yi, yq) of little-endian float64, so that the digest does not depend on block boundaries. */
