@@ -108,6 +108,7 @@ export * from './pipeline/stage.js';
 export * from './prbs/prbs.js';
 export * from './random/rng.js';
 export * from './receiver/default-chain.js';
+export * from './receiver/registry.js';
 export { InterpolationKernel, type LowpassSpec } from './resample/interpolation-kernel.js';
 export {
   type MatchedFilterDiagnostics,

@@ -1,4 +1,4 @@
-import { type Constellation, constellation, MODULATIONS, type ModulationName } from '../modulation/constellation.js';
+import { type Constellation, checkModulation, constellation, type ModulationName } from '../modulation/constellation.js';
 import { snrFromMoments } from '../modulation/moment-snr.js';
 import { type FieldBlock, fieldBlock } from '../pipeline/blocks.js';
 import { DecimatedTrace } from '../pipeline/decimated-trace.js';
@@ -162,7 +162,7 @@ const FALLBACK_HALF_WINDOW = 24;
  */
 export function viterbiViterbi(options: ViterbiViterbiStageOptions): Stage<'symbols', 'symbols', PhaseRecoveryDiagnostics> {
   const name = 'viterbi-viterbi';
-  const c = constellation(checkModulation(name, options.modulation));
+  const c = constellation(checkModulation(name, 'modulation', options.modulation));
   checkHalfWindow(name, options.halfWindow);
   const p = options.amplitudeExponent;
   if (p !== undefined && !(p >= 0 && Number.isFinite(p)))
@@ -190,7 +190,7 @@ export function viterbiViterbi(options: ViterbiViterbiStageOptions): Stage<'symb
  */
 export function blindPhaseSearch(options: BlindPhaseSearchStageOptions): Stage<'symbols', 'symbols', PhaseRecoveryDiagnostics> {
   const name = 'blind-phase-search';
-  const c = constellation(checkModulation(name, options.modulation));
+  const c = constellation(checkModulation(name, 'modulation', options.modulation));
   checkInteger(name, 'testPhases', options.testPhases, 2);
   checkHalfWindow(name, options.halfWindow);
   checkInteger(name, 'fineHalfWindow', options.fineHalfWindow, 0);
@@ -216,12 +216,6 @@ export function blindPhaseSearch(options: BlindPhaseSearchStageOptions): Stage<'
       ? new CoarseFinePhaseKernel(c, { ...options, halfWindow: n })
       : new BlindPhaseSearchKernel(c, { ...options, halfWindow: n });
   return new PhaseRecoveryStage(name, record, make, c, { ...options, halfWindow }, variant === 'single');
-}
-
-function checkModulation(name: string, m: unknown): ModulationName {
-  if (!MODULATIONS.includes(m as ModulationName))
-    throw new OptionError(name, 'modulation', `one of ${MODULATIONS.join(', ')}`, m);
-  return m as ModulationName;
 }
 
 function checkHalfWindow(name: string, v: unknown): void {

@@ -31,6 +31,12 @@ export function rootRaisedCosineSpectrum(f: number, symbolRate: number, rollOff:
 }
 
 /**
+ * The transmitter roll-off assumed when none is stated: 0.1, the
+ * simulator's, and the default of every stage and setting that takes one.
+ */
+export const DEFAULT_ROLL_OFF = 0.1;
+
+/**
  * Validates a roll-off factor.
  * @throws RangeError unless 0 < β ≤ 1
  * @example checkRollOff(0.1, 'my-filter'); // throws a RangeError for 0 or 1.5

@@ -1,7 +1,7 @@
 import {
   type Constellation,
+  checkModulation,
   constellation,
-  MODULATIONS,
   type ModulationName,
   nearestLevel,
 } from '../modulation/constellation.js';
@@ -108,7 +108,7 @@ class DecisionEqualizer implements Stage<'symbols', 'symbols', DecisionEqualizer
       throw new OptionError(NAME, option, expected, received);
     };
     if (o === null || typeof o !== 'object') fail('options', 'an options object', o);
-    if (!MODULATIONS.includes(o.modulation)) fail('modulation', `one of ${MODULATIONS.join(', ')}`, o.modulation);
+    checkModulation(NAME, 'modulation', o.modulation);
     const L = o.taps ?? 9;
     if (!Number.isInteger(L) || L < 1 || L > 63 || L % 2 === 0) fail('taps', 'an odd integer from 1 to 63', o.taps);
     const mu = o.stepSize ?? 3e-4;

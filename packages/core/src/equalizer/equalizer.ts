@@ -1,4 +1,4 @@
-import { constellation, MODULATIONS, type ModulationName } from '../modulation/constellation.js';
+import { checkModulation, constellation, type ModulationName } from '../modulation/constellation.js';
 import { type FieldBlock, fieldBlock } from '../pipeline/blocks.js';
 import { DecimatedTrace } from '../pipeline/decimated-trace.js';
 import { BlockError, type JsonValue, OptionError, type Stage, type StageRecord } from '../pipeline/stage.js';
@@ -18,16 +18,9 @@ import {
   separationIndex,
 } from './butterfly-kernel.js';
 import { cmaRule } from './cma.js';
-import {
-  type DdLmsRule,
-  DEFAULT_PHASE_LOOP,
-  dataAidedRule,
-  ddLmsRule,
-  type EqualizerTraining,
-  type PhaseLoopGains,
-} from './dd-lms.js';
+import { DEFAULT_PHASE_LOOP, dataAidedRule, ddLmsRule, type EqualizerTraining, type PhaseLoopGains } from './dd-lms.js';
 import { rdeRule } from './rde.js';
-import type { RadialTargets, UpdateRule } from './update-rule.js';
+import type { CarrierLoopState, RadialTargets, UpdateRule } from './update-rule.js';
 
 const NAME = 'butterfly-equalizer';
 
@@ -49,8 +42,12 @@ export interface EqualizerOptions {
   readonly modulation: ModulationName;
   /** Taps per filter L, odd, 1 … 201 (default 11: 5.5 symbols at 2 Sa/symbol). */
   readonly taps?: number;
-  /** Rule after pre-convergence: 'cma' or 'rde' (default 'cma' for QPSK, 'rde' for 16QAM and 64QAM). */
-  readonly blindRule?: 'cma' | 'rde';
+  /**
+   * Rule after pre-convergence: 'cma' or 'rde' (default 'cma' for QPSK,
+   * 'rde' for 16QAM and 64QAM), with the step of `stepSize`; or a rule
+   * object ({@link UpdateRule}) with its own step.
+   */
+  readonly blindRule?: 'cma' | 'rde' | UpdateRule;
   /**
    * Step sizes μ per rule, for an input of about unit power per
    * polarization, as the front end delivers: `preConvergence` for CMA at
@@ -116,6 +113,12 @@ export interface EqualizerOptions {
     readonly startSymbol: number;
     /** Gains of its carrier-phase loop (default: {@link ddLmsRule}'s). */
     readonly phaseLoop?: PhaseLoopGains;
+    /**
+     * The decision-directed rule itself (default {@link ddLmsRule} with
+     * `stepSize.ddLms` and `phaseLoop`): any {@link UpdateRule}; its carrier
+     * hooks (`observe`, `acquire`, `rewind`, `loopState`) are used when it has them.
+     */
+    readonly rule?: UpdateRule;
   };
   /**
    * Train on the transmitted symbols instead of adapting blind: each output
@@ -368,7 +371,7 @@ export function butterflyEqualizer(options: EqualizerOptions): Stage<'twoSps', '
 interface Resolved {
   modulation: ModulationName;
   L: number;
-  blindRule: 'cma' | 'rde';
+  blindRule: 'cma' | 'rde' | UpdateRule;
   mu: { preConvergence: number; cma: number; rde: number; ddLms: number };
   pre: number;
   startSymbols: number;
@@ -377,7 +380,7 @@ interface Resolved {
   initialTaps: EqualizerStart | ButterflyTaps;
   retryStarts: readonly EqualizerStart[];
   training: EqualizerTraining | null;
-  dd: { startSymbol: number; phaseLoop: PhaseLoopGains } | null;
+  dd: { startSymbol: number; phaseLoop: PhaseLoopGains; rule: UpdateRule | null } | null;
   orthogonalStart: boolean;
   restart: boolean;
   singularThreshold: number;
@@ -397,7 +400,7 @@ class ButterflyEqualizer implements Stage<'twoSps', 'symbols', EqualizerDiagnost
   private readonly kurtosis: number;
   private readonly preRule: UpdateRule;
   private readonly blind: UpdateRule;
-  private readonly dd: DdLmsRule | null;
+  private readonly dd: UpdateRule | null;
   private readonly taps: Float64Array;
   /** Per-symbol factor of the pre-convergence step size. */
   private readonly preDecay: number;
@@ -450,11 +453,12 @@ class ButterflyEqualizer implements Stage<'twoSps', 'symbols', EqualizerDiagnost
     // E|a|⁴ at unit power is the CMA radius R2.
     this.kurtosis = con.cmaRadius2;
     this.preRule = cmaRule(con, o.mu.preConvergence);
-    this.blind = o.blindRule === 'cma' ? cmaRule(con, o.mu.cma) : rdeRule(con, o.mu.rde);
+    this.blind =
+      typeof o.blindRule === 'object' ? o.blindRule : o.blindRule === 'cma' ? cmaRule(con, o.mu.cma) : rdeRule(con, o.mu.rde);
     this.dd = o.training
       ? dataAidedRule(con, o.mu.ddLms, o.training, o.dd?.phaseLoop)
       : o.dd
-        ? ddLmsRule(con, o.mu.ddLms, o.dd.phaseLoop)
+        ? (o.dd.rule ?? ddLmsRule(con, o.mu.ddLms, o.dd.phaseLoop))
         : null;
     this.taps = new Float64Array(8 * o.L);
     this.preHold = Math.floor(o.pre / 2);
@@ -522,7 +526,7 @@ class ButterflyEqualizer implements Stage<'twoSps', 'symbols', EqualizerDiagnost
     const phases: EqualizerPhase[] = [];
     if (o.pre > 0) phases.push({ rule: 'cma', fromSymbol: 0, orthogonalY: o.orthogonalStart });
     phases.push({ rule: this.blind.name, fromSymbol: o.pre, orthogonalY: false });
-    if (o.dd) phases.push({ rule: this.dd?.name ?? 'dd-lms', fromSymbol: o.dd.startSymbol, orthogonalY: false });
+    if (o.dd && this.dd) phases.push({ rule: this.dd.name, fromSymbol: o.dd.startSymbol, orthogonalY: false });
     const loopOn = this.dd !== null && o.dd !== null && this.adapted >= o.dd.startSymbol;
     const symbolRate = this.sampleRate / 2;
     const trace = this.trace.result();
@@ -558,15 +562,7 @@ class ButterflyEqualizer implements Stage<'twoSps', 'symbols', EqualizerDiagnost
         restarts: this.restarts,
         criterion: SINGULARITY_CRITERION,
       },
-      carrierLoop:
-        loopOn && this.dd
-          ? {
-              phaseX: this.dd.loopState(0).phase,
-              phaseY: this.dd.loopState(1).phase,
-              frequencyHzX: (this.dd.loopState(0).frequency * symbolRate) / (2 * Math.PI),
-              frequencyHzY: (this.dd.loopState(1).frequency * symbolRate) / (2 * Math.PI),
-            }
-          : null,
+      carrierLoop: loopOn && this.dd?.loopState ? carrierLoop(this.dd.loopState(0), this.dd.loopState(1), symbolRate) : null,
     };
   }
 
@@ -586,14 +582,16 @@ class ButterflyEqualizer implements Stage<'twoSps', 'symbols', EqualizerDiagnost
       options: {
         modulation: o.modulation,
         taps: o.L,
-        blindRule: o.blindRule,
+        blindRule: typeof o.blindRule === 'object' ? o.blindRule.name : o.blindRule,
         stepSize: { ...o.mu },
         preConvergenceSymbols: o.pre,
         convergeOnStart: { symbols: o.startSymbols, passes: o.passes },
         updateEvery: o.updateEvery,
         initialTaps: taps,
         retryStarts: [...o.retryStarts],
-        ddLms: o.dd ? { startSymbol: o.dd.startSymbol, phaseLoop: { ...o.dd.phaseLoop } } : null,
+        ddLms: o.dd
+          ? { startSymbol: o.dd.startSymbol, phaseLoop: { ...o.dd.phaseLoop }, ...(o.dd.rule ? { rule: o.dd.rule.name } : {}) }
+          : null,
         // The targets by where they come from (the symbols themselves are the reference's).
         training: o.training
           ? {
@@ -876,7 +874,8 @@ class ButterflyEqualizer implements Stage<'twoSps', 'symbols', EqualizerDiagnost
       } else {
         adaptWithRule(taps, L, ux, uy, first, n, blind, blind.stepSize, a, o.updateEvery, this.z, this.ex, this.ey, seg);
       }
-      const observe = dd !== null && a >= acquireFrom && a < ddStart;
+      // Only a rule that acquires its carrier observes the blind outputs before the switch.
+      const observer = dd !== null && a >= acquireFrom && a < ddStart && dd.observe ? dd : null;
       for (let i = 0, k = 0; i < n; i++, k += ADAPT_STRIDE) {
         const xr = seg[k];
         const xi = seg[k + 1];
@@ -898,9 +897,9 @@ class ButterflyEqualizer implements Stage<'twoSps', 'symbols', EqualizerDiagnost
           this.windowPos = this.windowPos + 1 === window ? 0 : this.windowPos + 1;
           if (this.windowFill < window) this.windowFill++;
         }
-        if (observe) {
-          (dd as DdLmsRule).observe(xr, xi, 0);
-          (dd as DdLmsRule).observe(yr, yi, 1);
+        if (observer !== null) {
+          observer.observe?.(xr, xi, 0);
+          observer.observe?.(yr, yi, 1);
         }
         acc[0] += seg[k + 4];
         acc[1] += seg[k + 5];
@@ -916,19 +915,19 @@ class ButterflyEqualizer implements Stage<'twoSps', 'symbols', EqualizerDiagnost
         this.tracePoint();
         nextTrace += o.traceEvery;
       }
-      if (dd !== null && a === ddStart) dd.acquire();
+      if (dd !== null && a === ddStart) dd.acquire?.();
       if (a === nextCheck) {
         if (o.restart && !this.inStartPasses) this.checkSingularity();
         nextCheck += CHECK_EVERY;
       }
     }
     const last = a - 1;
-    this.currentRule = last < pre ? 'cma' : last >= ddStart ? 'dd-lms' : blind.name;
+    this.currentRule = last < pre ? 'cma' : last >= ddStart && dd !== null ? dd.name : blind.name;
   }
 
   /** Carries the DD-LMS loop back to the capture's start if it is running. */
   private rewindCarrier(symbols: number): void {
-    if (this.dd && this.o.dd && this.adapted > this.o.dd.startSymbol) this.dd.rewind(symbols);
+    if (this.dd && this.o.dd && this.adapted > this.o.dd.startSymbol) this.dd.rewind?.(symbols);
   }
 
   private tracePoint(): void {
@@ -1002,11 +1001,12 @@ function validate(opt: EqualizerOptions): Resolved {
     return v as number;
   };
   if (opt === null || typeof opt !== 'object') fail('options', 'an options object', opt);
-  if (!MODULATIONS.includes(opt.modulation)) fail('modulation', `one of ${MODULATIONS.join(', ')}`, opt.modulation);
+  checkModulation(NAME, 'modulation', opt.modulation);
   const L = integer('taps', opt.taps, 11, 1, 201);
   if (L % 2 === 0) fail('taps', 'an odd number of taps', L);
   const blindRule = opt.blindRule ?? (opt.modulation === 'qpsk' ? 'cma' : 'rde');
-  if (blindRule !== 'cma' && blindRule !== 'rde') fail('blindRule', "'cma' or 'rde'", blindRule);
+  if (blindRule !== 'cma' && blindRule !== 'rde' && !isRule(blindRule))
+    fail('blindRule', "'cma', 'rde' or an update rule ({ name, stepSize, error(), reset() })", blindRule);
   const mu = {
     preConvergence: positive('stepSize.preConvergence', opt.stepSize?.preConvergence, 3e-3),
     cma: positive('stepSize.cma', opt.stepSize?.cma, opt.modulation === '64qam' ? 1e-4 : 3e-4),
@@ -1048,7 +1048,7 @@ function validate(opt: EqualizerOptions): Resolved {
   if (!Array.isArray(retryStarts) || retryStarts.some((r) => !EQUALIZER_STARTS.includes(r)))
     fail('retryStarts', `a list of ${startNames}`, retryStarts);
   let dd: Resolved['dd'] = null;
-  if (training !== null) dd = { startSymbol: 0, phaseLoop: opt.ddLms?.phaseLoop ?? DEFAULT_PHASE_LOOP };
+  if (training !== null) dd = { startSymbol: 0, phaseLoop: opt.ddLms?.phaseLoop ?? DEFAULT_PHASE_LOOP, rule: null };
   else if (opt.ddLms !== undefined) {
     const startSymbol = integer('ddLms.startSymbol', opt.ddLms.startSymbol, 0, pre);
     const loop = opt.ddLms.phaseLoop ?? DEFAULT_PHASE_LOOP;
@@ -1056,7 +1056,9 @@ function validate(opt: EqualizerOptions): Resolved {
     const ki = loop.integral;
     if (typeof kp !== 'number' || !(kp > 0 && kp < 1)) fail('ddLms.phaseLoop.proportional', 'a gain in (0, 1)', kp);
     if (typeof ki !== 'number' || !(ki >= 0 && ki < kp)) fail('ddLms.phaseLoop.integral', 'a gain in [0, proportional)', ki);
-    dd = { startSymbol, phaseLoop: { proportional: kp, integral: ki } };
+    const rule = opt.ddLms.rule ?? null;
+    if (rule !== null && !isRule(rule)) fail('ddLms.rule', 'an update rule ({ name, stepSize, error(), reset() })', rule);
+    dd = { startSymbol, phaseLoop: { proportional: kp, integral: ki }, rule };
   }
   const sing = opt.singularity ?? {};
   const orthogonalStart = sing.orthogonalStart ?? false;
@@ -1089,5 +1091,22 @@ function validate(opt: EqualizerOptions): Resolved {
     convergenceThreshold,
     dependenceThreshold,
     traceEvery,
+  };
+}
+
+/** Whether a value has what the equalizer calls of an update rule. */
+function isRule(r: unknown): r is UpdateRule {
+  if (typeof r !== 'object' || r === null) return false;
+  const u = r as Partial<UpdateRule>;
+  return typeof u.name === 'string' && typeof u.error === 'function' && typeof u.reset === 'function' && (u.stepSize ?? 0) > 0;
+}
+
+/** The diagnostics' view of a carrier loop: phases in rad, frequencies in Hz. */
+function carrierLoop(x: CarrierLoopState, y: CarrierLoopState, symbolRate: number) {
+  return {
+    phaseX: x.phase,
+    phaseY: y.phase,
+    frequencyHzX: (x.frequency * symbolRate) / (2 * Math.PI),
+    frequencyHzY: (y.frequency * symbolRate) / (2 * Math.PI),
   };
 }

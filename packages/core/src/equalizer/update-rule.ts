@@ -31,6 +31,26 @@ export interface UpdateRule {
   readonly radial?: RadialTargets;
   /** Forgets any state (a rule with none does nothing). */
   reset(): void;
+  /**
+   * For a rule that tracks the carrier itself (the decision-directed ones):
+   * takes a blind output seen just before the equalizer switches to it, to
+   * acquire its phase. Not called for other rules' slots.
+   */
+  observe?(re: number, im: number, pol: 0 | 1): void;
+  /** Called once as the equalizer switches to this rule, after the observed outputs. */
+  acquire?(): void;
+  /** Moves any carrier state back `symbols` symbols, as the equalizer starts over from the capture's start. */
+  rewind?(symbols: number): void;
+  /** The state of its carrier loop, for the diagnostics (a rule without one has no such method). */
+  loopState?(pol: 0 | 1): CarrierLoopState;
+}
+
+/** The state of a rule's carrier loop, per polarization. */
+export interface CarrierLoopState {
+  /** Loop phase θ, rad. */
+  readonly phase: number;
+  /** Loop frequency ν, rad per symbol. */
+  readonly frequency: number;
 }
 
 /**

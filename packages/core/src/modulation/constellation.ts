@@ -1,3 +1,4 @@
+import { OptionError } from '../pipeline/stage.js';
 import { type ComplexArray, complexArray } from '../signal/complex.js';
 
 /** Modulation formats the library handles. */
@@ -52,6 +53,18 @@ export function constellation(name: ModulationName): Constellation {
   const c = build(name, order);
   cache.set(name, c);
   return c;
+}
+
+/**
+ * A modulation name checked where an option gives it: the one wording of the
+ * rule for every stage and setting that takes one.
+ * @throws OptionError naming the stage or function and the option
+ * @example checkModulation('decision-equalizer', 'modulation', '16qam') // '16qam'
+ */
+export function checkModulation(where: string, option: string, value: unknown): ModulationName {
+  if (!(MODULATIONS as readonly unknown[]).includes(value))
+    throw new OptionError(where, option, `one of ${MODULATIONS.join(', ')}`, value);
+  return value as ModulationName;
 }
 
 /**

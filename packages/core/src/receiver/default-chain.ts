@@ -12,6 +12,7 @@ import { blindPhaseSearch, type PhaseRecoveryDiagnostics, viterbiViterbi } from 
 import type { BlindDispersionOptions } from '../dispersion/blind-dispersion.js';
 import { type CompensateDispersionDiagnostics, compensateDispersion } from '../dispersion/compensate-dispersion.js';
 import { cdTapCount } from '../dispersion/dispersion-filter.js';
+import { DEFAULT_ROLL_OFF } from '../dsp/rrc.js';
 import {
   type DecisionEqualizerDiagnostics,
   type DecisionEqualizerOptions,
@@ -26,7 +27,7 @@ import {
   normalizeChannels,
 } from '../frontend/normalize-channels.js';
 import { type OrthogonalizeIqDiagnostics, type OrthogonalizeIqOptions, orthogonalizeIq } from '../frontend/orthogonalize-iq.js';
-import { MODULATIONS, type ModulationName } from '../modulation/constellation.js';
+import { checkModulation, type ModulationName } from '../modulation/constellation.js';
 import type { BlockOf, Domain } from '../pipeline/blocks.js';
 import { pipe } from '../pipeline/pipe.js';
 import { type AnyStage, type JsonValue, OptionError, type Stage, type StageRecord } from '../pipeline/stage.js';
@@ -34,6 +35,13 @@ import { type MatchedFilterDiagnostics, rrcMatchedFilter } from '../resample/mat
 import { type ResampleDiagnostics, resampleToTwoSps } from '../resample/resampler.js';
 import type { ChannelName } from '../signal/dual-pol.js';
 import { type GardnerDiagnostics, type GardnerOptions, gardnerClockRecovery } from '../timing/gardner-clock-recovery.js';
+import {
+  ALGORITHMS,
+  type EqualizerRuleName,
+  type OrthogonalizationName,
+  type PhaseRecoveryName,
+  rebuildStage,
+} from './registry.js';
 
 const NAME = 'default-receiver';
 
@@ -145,6 +153,15 @@ export interface ReceiverSettings<R extends ReplacedStages = NoReplacement> {
    * see {@link estimateIqSkew}).
    */
   readonly estimateSkew?: boolean;
+  /**
+   * The carrier-phase recovery (default 'viterbi-viterbi' for QPSK,
+   * 'blind-phase-search' for QAM; see {@link ALGORITHMS}).
+   */
+  readonly phaseRecovery?: PhaseRecoveryName;
+  /** The equalizer's blind rule after pre-convergence (default 'cma' for QPSK, 'rde' for QAM). */
+  readonly equalizerRule?: EqualizerRuleName;
+  /** The front end's IQ orthogonalization (default 'gsop'). */
+  readonly orthogonalization?: OrthogonalizationName;
   /** Options passed to the stages the chain builds. */
   readonly options?: {
     /** Options of the `normalize` slot ({@link normalizeChannels}). */
@@ -204,8 +221,12 @@ export interface ResolvedReceiverSettings {
   readonly expectedDgdPs: number;
   /** Taps per filter of the 2×2 equalizer (odd). */
   readonly equalizerTaps: number;
-  /** 'viterbi-viterbi' for QPSK, 'blind-phase-search' for QAM (unless replaced). */
-  readonly phaseRecovery: 'viterbi-viterbi' | 'blind-phase-search';
+  /** The carrier-phase recovery ('viterbi-viterbi' for QPSK, 'blind-phase-search' for QAM unless chosen; a replaced stage is its own). */
+  readonly phaseRecovery: PhaseRecoveryName;
+  /** The equalizer's blind rule after pre-convergence. */
+  readonly equalizerRule: EqualizerRuleName;
+  /** The front end's IQ orthogonalization. */
+  readonly orthogonalization: OrthogonalizationName;
 }
 
 /**
@@ -274,7 +295,7 @@ export function defaultReceiver<R extends ReplacedStages = NoReplacement>(
   const refine = s.modulation !== 'qpsk' && o.decisionEqualizer !== false;
   const stages: ReceiverStages = {
     normalize: r.normalize ?? normalizeChannels(o.normalize),
-    orthogonalize: r.orthogonalize ?? orthogonalizeIq(o.orthogonalize),
+    orthogonalize: r.orthogonalize ?? orthogonalizeIq({ method: s.orthogonalization, ...o.orthogonalize }),
     deskew: r.deskew !== undefined ? r.deskew : settings.skewPs ? deskewChannels({ skewPs: settings.skewPs }) : null,
     combine: r.combine ?? combineChannels(),
     coarseFrequency: r.coarseFrequency ?? coarseFrequencyShift(o.coarseFrequency),
@@ -298,7 +319,9 @@ export function defaultReceiver<R extends ReplacedStages = NoReplacement>(
     // roll-off 0.1, and 1e-4 of the symbol rate saves 0.1 dB with DGD while
     // still following ±20 ppm (a wider loop suits larger clock offsets).
     timing: r.timing ?? gardnerClockRecovery({ rollOff: s.rollOff, loopBandwidth: 1e-4, ...o.timing }),
-    equalizer: r.equalizer ?? butterflyEqualizer({ taps: s.equalizerTaps, ...o.equalizer, modulation: s.modulation }),
+    equalizer:
+      r.equalizer ??
+      butterflyEqualizer({ taps: s.equalizerTaps, blindRule: s.equalizerRule, ...o.equalizer, modulation: s.modulation }),
     frequency: r.frequency ?? frequencyOffsetRecovery(o.frequency),
     phase: r.phase ?? (s.phaseRecovery === 'viterbi-viterbi' ? viterbiViterbi(phaseOptions) : blindPhaseSearch(phaseOptions)),
     decisionEqualizer:
@@ -316,13 +339,13 @@ function resolve(settings: ReceiverSettings<ReplacedStages>): ResolvedReceiverSe
   const fail = (option: string, expected: string, received: unknown): never => {
     throw new OptionError(NAME, option, expected, received);
   };
-  if (!MODULATIONS.includes(settings.modulation)) fail('modulation', `one of ${MODULATIONS.join(', ')}`, settings.modulation);
+  checkModulation(NAME, 'modulation', settings.modulation);
   const positive = (name: string, v: number) => {
     if (!(v > 0) || !Number.isFinite(v)) fail(name, 'a positive finite number', v);
   };
   positive('symbolRate', settings.symbolRate);
   positive('sampleRate', settings.sampleRate);
-  const rollOff = settings.rollOff ?? 0.1;
+  const rollOff = settings.rollOff ?? DEFAULT_ROLL_OFF;
   if (!(rollOff > 0 && rollOff <= 1)) fail('rollOff', 'a roll-off in (0, 1]', rollOff);
   if (settings.sampleRate < (1 + rollOff) * settings.symbolRate) {
     fail(
@@ -349,8 +372,64 @@ function resolve(settings: ReceiverSettings<ReplacedStages>): ResolvedReceiverSe
     estimateSkew: estimateSkew && !settings.skewPs,
     expectedDgdPs: dgd,
     equalizerTaps: settings.options?.equalizer?.taps ?? equalizerTapsFor(dgd, residual, settings.symbolRate),
-    phaseRecovery: settings.modulation === 'qpsk' ? 'viterbi-viterbi' : 'blind-phase-search',
+    phaseRecovery: choose(
+      'phaseRecovery',
+      settings.phaseRecovery,
+      settings.modulation === 'qpsk' ? 'viterbi-viterbi' : 'blind-phase-search',
+    ),
+    equalizerRule: choose('equalizerRule', settings.equalizerRule, settings.modulation === 'qpsk' ? 'cma' : 'rde'),
+    orthogonalization: choose('orthogonalization', settings.orthogonalization, 'gsop'),
   };
+}
+
+/** An algorithm chosen by name among {@link ALGORITHMS}' (the default when none is). */
+function choose<K extends keyof typeof ALGORITHMS>(
+  kind: K,
+  given: unknown,
+  fallback: (typeof ALGORITHMS)[K][number],
+): (typeof ALGORITHMS)[K][number] {
+  if (given === undefined) return fallback;
+  const names: readonly string[] = ALGORITHMS[kind];
+  if (typeof given !== 'string' || !names.includes(given)) throw new OptionError(NAME, kind, `one of ${names.join(', ')}`, given);
+  return given as (typeof ALGORITHMS)[K][number];
+}
+
+/**
+ * Builds the default chain again from its record (its `describe()`, as an
+ * analysis's reproducibility record holds it under `pipeline`): every stage
+ * rebuilt from its recorded options ({@link rebuildStage}), in its slot.
+ * @throws OptionError for a record that is not the default chain's, or a stage that cannot be rebuilt
+ * @example const again = rebuildReceiver(result.record.pipeline); // the same chain, the same output
+ */
+export function rebuildReceiver(record: StageRecord): ReceiverChain<ReceiverStages> {
+  if (record.stage !== NAME) throw new OptionError('rebuild', 'stage', `'${NAME}'`, record.stage);
+  const o = record.options;
+  const replace: Record<string, AnyStage | null> = { deskew: null, decisionEqualizer: null };
+  for (const stage of record.stages ?? []) {
+    const slot = (stage as StageRecord & { readonly slot?: string }).slot;
+    if (slot === undefined || !(SLOTS as readonly string[]).includes(slot))
+      throw new OptionError('rebuild', 'slot', `one of ${SLOTS.join(', ')}`, slot);
+    replace[slot] = rebuildStage(stage);
+  }
+  for (const slot of SLOTS)
+    if (replace[slot] === undefined) throw new OptionError('rebuild', 'stages', `a stage in slot '${slot}'`, 'none');
+  // The recorded settings are the resolved ones; the stages carry every option of their own.
+  const settings = o as unknown as ResolvedReceiverSettings;
+  return defaultReceiver({
+    modulation: settings.modulation,
+    symbolRate: settings.symbolRate,
+    sampleRate: settings.sampleRate,
+    rollOff: settings.rollOff,
+    ...(settings.dispersionPsPerNm !== null ? { dispersionPsPerNm: settings.dispersionPsPerNm } : {}),
+    estimateDispersion: settings.estimateDispersion,
+    estimateSkew: settings.estimateSkew,
+    expectedDgdPs: settings.expectedDgdPs,
+    phaseRecovery: settings.phaseRecovery,
+    equalizerRule: settings.equalizerRule,
+    orthogonalization: settings.orthogonalization,
+    options: { equalizer: { taps: settings.equalizerTaps } },
+    replace: replace as ReplacedStages,
+  });
 }
 
 const SLOTS: readonly (keyof ReceiverStages)[] = [

@@ -1,6 +1,6 @@
 import { OverlapSave, overlapSaveSize, responseOfCenteredTaps } from '../dispersion/overlap-save.js';
 import { ifft } from '../dsp/fft.js';
-import { rootRaisedCosineSpectrum } from '../dsp/rrc.js';
+import { DEFAULT_ROLL_OFF, rootRaisedCosineSpectrum } from '../dsp/rrc.js';
 import { type FieldBlock, fieldBlock } from '../pipeline/blocks.js';
 import { type Pipeline, pipe } from '../pipeline/pipe.js';
 import { BlockError, OptionError, type Stage, type StageRecord } from '../pipeline/stage.js';
@@ -93,7 +93,7 @@ class RrcMatchedFilter implements Stage<'twoSps', 'twoSps', MatchedFilterDiagnos
   private delivered = 0;
 
   constructor(o: MatchedFilterOptions) {
-    this.rollOff = o.rollOff ?? 0.1;
+    this.rollOff = o.rollOff ?? DEFAULT_ROLL_OFF;
     if (!(this.rollOff > 0 && this.rollOff <= 1)) throw new OptionError(this.name, 'rollOff', 'a roll-off in (0, 1]', o.rollOff);
     this.span = o.spanSymbols ?? 32;
     if (!Number.isInteger(this.span) || this.span < 1 || this.span > 4096) {

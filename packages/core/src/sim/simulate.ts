@@ -1,6 +1,6 @@
 import { fft, ifft } from '../dsp/fft.js';
-import { rootRaisedCosineSpectrum } from '../dsp/rrc.js';
-import { constellation, MODULATIONS, mapBits } from '../modulation/constellation.js';
+import { DEFAULT_ROLL_OFF, rootRaisedCosineSpectrum } from '../dsp/rrc.js';
+import { checkModulation, constellation, mapBits } from '../modulation/constellation.js';
 import { identityJones, type JonesMatrix, randomUnitary } from '../physics/jones.js';
 import { dispersionPhase, osnrToSnrDb } from '../physics/link.js';
 import { OptionError } from '../pipeline/stage.js';
@@ -345,11 +345,11 @@ function validate(opt: SimulationOptions): Resolved {
     return v as number;
   };
   if (!Number.isSafeInteger(opt.seed)) fail('seed', 'a safe integer', opt.seed);
-  if (!MODULATIONS.includes(opt.modulation)) fail('modulation', `one of ${MODULATIONS.join(', ')}`, opt.modulation);
+  checkModulation(NAME, 'modulation', opt.modulation);
   if (!Number.isInteger(opt.symbols) || opt.symbols < 16) fail('symbols', 'an integer ≥ 16', opt.symbols);
   if (!(opt.symbolRate > 0) || !Number.isFinite(opt.symbolRate))
     fail('symbolRate', 'a positive symbol rate in Bd', opt.symbolRate);
-  const rollOff = finite('rollOff', opt.rollOff, 0.1);
+  const rollOff = finite('rollOff', opt.rollOff, DEFAULT_ROLL_OFF);
   if (!(rollOff > 0 && rollOff <= 1)) fail('rollOff', 'a roll-off in (0, 1]', rollOff);
   const sps = finite('samplesPerSymbol', opt.samplesPerSymbol, 2);
   if (sps < 1 + rollOff) fail('samplesPerSymbol', `at least 1 + roll-off = ${1 + rollOff} (no aliasing)`, sps);

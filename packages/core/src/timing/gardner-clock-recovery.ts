@@ -1,3 +1,4 @@
+import { DEFAULT_ROLL_OFF } from '../dsp/rrc.js';
 import { MIN_TIMING_LINE } from '../frontend/iq-skew.js';
 import { type FieldBlock, fieldBlock } from '../pipeline/blocks.js';
 import { BlockError, OptionError, type Stage, type StageRecord } from '../pipeline/stage.js';
@@ -192,7 +193,7 @@ class GardnerClockRecovery implements Stage<'twoSps', 'twoSps', GardnerDiagnosti
   private lineStrength = Number.NaN;
 
   constructor(o: GardnerOptions) {
-    this.rollOff = o.rollOff ?? 0.1;
+    this.rollOff = o.rollOff ?? DEFAULT_ROLL_OFF;
     if (!(this.rollOff > 0 && this.rollOff <= 1)) throw new OptionError(this.name, 'rollOff', 'a roll-off in (0, 1]', o.rollOff);
     this.bandwidth = o.loopBandwidth ?? 5e-4;
     if (!(this.bandwidth >= 1e-6 && this.bandwidth <= 0.05)) {

@@ -2,10 +2,8 @@ import { createHash } from 'node:crypto';
 import type { ReceiverSettings } from '@intradyne/core';
 import { type AnalysisResult, type AnalyzeOptions, analyzeCapture, type InputHasher } from '@intradyne/metrics';
 import { type CaptureDescription, openCapture } from '../capture/capture.js';
-import { parseJsonFile } from '../capture/json-positions.js';
 import { InputError } from '../errors/input-error.js';
 import { UsageError } from '../errors/usage-error.js';
-import { readInputText } from '../load/open-file.js';
 import { SpectrumAccumulator } from './spectrum-estimate.js';
 
 /** What may change the receiver for one analysis (command-line options or a pipeline file). */
@@ -129,21 +127,4 @@ function nativeSha256(): InputHasher {
     update: (bytes) => h.update(bytes),
     hex: () => h.digest('hex'),
   };
-}
-
-/**
- * Reads a pipeline file: JSON with optional `receiver` (stage options,
- * `expectedDgdPs`, `blindDispersion`) and `analysis` (`skipSymbols`,
- * `modulationTolerance`) objects.
- * @throws InputError naming the file for unreadable JSON or other keys
- */
-export function readPipelineFile(path: string): Pick<AnalysisSettings, 'receiver' | 'analysis'> {
-  const doc = parseJsonFile(readInputText(path, 'pipeline'), path);
-  if (typeof doc !== 'object' || doc === null || Array.isArray(doc))
-    throw new InputError({ file: path }, 'pipeline', 'a JSON object', typeof doc);
-  for (const k of Object.keys(doc)) {
-    if (k !== 'receiver' && k !== 'analysis')
-      throw new InputError({ file: path }, `key '${k}'`, "only 'receiver' and 'analysis'", 'an unknown key');
-  }
-  return doc as Pick<AnalysisSettings, 'receiver' | 'analysis'>;
 }

@@ -1,4 +1,4 @@
-import { MODULATIONS, type ModulationName } from '@intradyne/core';
+import { DEFAULT_ROLL_OFF, MODULATIONS, type ModulationName } from '@intradyne/core';
 import { InputError, quoteText } from '../errors/input-error.js';
 import { UsageError } from '../errors/usage-error.js';
 import type { CaptureColumn } from '../load/csv-capture.js';
@@ -54,7 +54,7 @@ export interface CaptureDescriptor {
 /** Defaults of the optional descriptor fields. */
 export const DESCRIPTOR_DEFAULTS = {
   /** Transmitter roll-off (the simulator's default). */
-  rollOff: 0.1,
+  rollOff: DEFAULT_ROLL_OFF,
 } as const;
 
 /** The fields a descriptor may hold. */

@@ -1,6 +1,7 @@
 import { join } from 'node:path';
-import { MODULATIONS } from '@intradyne/core';
-import { type AnalysisSettings, analyzeOpenCapture, type FileAnalysis, readPipelineFile } from '../analysis/analyze-file.js';
+import { ALGORITHMS, MODULATIONS } from '@intradyne/core';
+import { type AnalysisSettings, analyzeOpenCapture, type FileAnalysis } from '../analysis/analyze-file.js';
+import { readPipelineFile } from '../analysis/pipeline-file.js';
 import { stageSymbolsArrowStreaming } from '../arrow/arrow-write.js';
 import { openCapture } from '../capture/capture.js';
 import { LIMITS, rateProblem } from '../capture/limits.js';
@@ -36,6 +37,12 @@ Options (each overrides the descriptor):
   --dispersion PSNM     accumulated dispersion to remove, ps/nm
   --no-blind-dispersion remove no dispersion when none is stated (default: estimate it)
   --skip N              leading recovered symbols left out (default 2048)
+  --phase-recovery NAME ${ALGORITHMS.phaseRecovery.join(' or ')} (default: the first for
+                        QPSK, the second for QAM)
+  --equalizer-rule NAME the equalizer's blind rule: ${ALGORITHMS.equalizerRule.join(' or ')} (default: CMA for QPSK,
+                        RDE for QAM)
+  --orthogonalization NAME
+                        IQ orthogonalization: ${ALGORITHMS.orthogonalization.join(' or ')} (default gsop)
   --data-aided          train the equalizer on the transmitted symbols after a blind
                         pass has aligned them (the best case to compare blind DSP with)
   --pipeline FILE       JSON with "receiver" (stage options) and "analysis" settings
@@ -96,11 +103,25 @@ export function analysisSettingsFrom(command: string, values: Record<string, str
     dispersionPsPerNm,
   };
   const pipeline = values.pipeline ? readPipelineFile(values.pipeline as string) : {};
+  // Algorithms chosen by name: an option wins over the pipeline file.
+  const algorithms: Record<string, string> = {};
+  for (const [option, kind] of [
+    ['phase-recovery', 'phaseRecovery'],
+    ['equalizer-rule', 'equalizerRule'],
+    ['orthogonalization', 'orthogonalization'],
+  ] as const) {
+    const v = values[option] as string | undefined;
+    if (v === undefined) continue;
+    const names: readonly string[] = ALGORITHMS[kind];
+    if (!names.includes(v))
+      throw new UsageError(`intradyne ${command}: --${option} expected one of ${names.join(', ')}, received '${v}'`);
+    algorithms[kind] = v;
+  }
   const skip = values.skip !== undefined ? positiveInteger(command, 'skip', values.skip as string) : undefined;
   return {
     overrides,
     estimateDispersion: values['no-blind-dispersion'] !== true,
-    receiver: pipeline.receiver,
+    receiver: { ...pipeline.receiver, ...algorithms },
     analysis: {
       ...pipeline.analysis,
       ...(skip !== undefined ? { skipSymbols: skip } : {}),
@@ -118,6 +139,9 @@ export const ANALYSIS_OPTIONS = {
   'no-blind-dispersion': { type: 'boolean' },
   skip: { type: 'string' },
   'data-aided': { type: 'boolean' },
+  'phase-recovery': { type: 'string' },
+  'equalizer-rule': { type: 'string' },
+  orthogonalization: { type: 'string' },
   pipeline: { type: 'string' },
 } as const;
 

@@ -71,7 +71,8 @@ Options:
   --json                print the summary and the rows as one JSON object
   and every analysis option of 'intradyne analyze' (applied to every capture):
   --modulation M, --symbol-rate BD, --sample-rate SAS, --roll-off B,
-  --dispersion PSNM, --no-blind-dispersion, --skip N, --data-aided, --pipeline FILE
+  --dispersion PSNM, --no-blind-dispersion, --skip N, --phase-recovery NAME,
+  --equalizer-rule NAME, --orthogonalization NAME, --data-aided, --pipeline FILE
   -h, --help            this text
 
 The progress bar and its ETA go to stderr; the summary to stdout.

@@ -235,9 +235,7 @@ export function analyzeCapture<R extends ReplacedStages = NoReplacement>(
   reference: DualPol,
   options: AnalyzeOptions = {},
 ): AnalysisResult<ReceiverDiagnostics<StagesWith<R>>> {
-  const training = options.equalizerTraining ?? 'blind';
-  if (training !== 'blind' && training !== 'data-aided')
-    throw new OptionError('analyze', 'equalizerTraining', "'blind' or 'data-aided'", training);
+  const training = resolveAnalyzeOptions(options).equalizerTraining;
   if (training === 'blind') return analyzeOnce(blocks, settings, reference, options, 'blind');
   // An iterator is its own iterable: it would give nothing the second time.
   if ((blocks[Symbol.iterator]() as unknown) === blocks)
@@ -267,6 +265,37 @@ export function analyzeCapture<R extends ReplacedStages = NoReplacement>(
   return analyzeOnce(blocks, { ...settings, options: { ...settings.options, equalizer } }, reference, options, 'data-aided');
 }
 
+/** The settings of an analysis with every default filled in (the reproducibility record's `analysis`). */
+export type ResolvedAnalyzeOptions = ReproducibilityRecord['analysis'];
+
+/**
+ * The analysis's own settings checked and with their defaults: the one
+ * place they are validated (the command checks a pipeline file with it
+ * before any capture is read).
+ * @throws OptionError naming the option, what was expected and what was received
+ * @example resolveAnalyzeOptions({ skipSymbols: 4096 }).skipTailSymbols // 128
+ */
+export function resolveAnalyzeOptions(options: AnalyzeOptions = {}): ResolvedAnalyzeOptions {
+  const equalizerTraining = options.equalizerTraining ?? 'blind';
+  if (equalizerTraining !== 'blind' && equalizerTraining !== 'data-aided')
+    throw new OptionError('analyze', 'equalizerTraining', "'blind' or 'data-aided'", equalizerTraining);
+  const count = (option: string, v: number | undefined, fallback: number, least: number) => {
+    const n = v ?? fallback;
+    if (!Number.isSafeInteger(n) || n < least) throw new OptionError('analyze', option, `an integer ≥ ${least}`, n);
+    return n;
+  };
+  const modulationTolerance = options.modulationTolerance ?? 0.1;
+  if (!(modulationTolerance > 0) || !Number.isFinite(modulationTolerance))
+    throw new OptionError('analyze', 'modulationTolerance', 'a positive number', modulationTolerance);
+  return {
+    equalizerTraining,
+    skipSymbols: count('skipSymbols', options.skipSymbols, 2048, 0),
+    skipTailSymbols: count('skipTailSymbols', options.skipTailSymbols, 128, 0),
+    modulationTolerance,
+    fitSymbols: count('fitSymbols', options.fitSymbols, DEFAULT_FIT_SYMBOLS, 1),
+  };
+}
+
 function analyzeOnce<R extends ReplacedStages>(
   blocks: Iterable<ChannelBlock>,
   settings: ReceiverSettings<R>,
@@ -274,17 +303,7 @@ function analyzeOnce<R extends ReplacedStages>(
   options: AnalyzeOptions,
   equalizerTraining: EqualizerTrainingMode,
 ): AnalysisResult<ReceiverDiagnostics<StagesWith<R>>> {
-  const skipSymbols = options.skipSymbols ?? 2048;
-  if (!Number.isInteger(skipSymbols) || skipSymbols < 0)
-    throw new OptionError('analyze', 'skipSymbols', 'an integer ≥ 0', skipSymbols);
-  const skipTail = options.skipTailSymbols ?? 128;
-  if (!Number.isInteger(skipTail) || skipTail < 0)
-    throw new OptionError('analyze', 'skipTailSymbols', 'an integer ≥ 0', skipTail);
-  const tolerance = options.modulationTolerance ?? 0.1;
-  if (!(tolerance > 0)) throw new OptionError('analyze', 'modulationTolerance', 'a positive number', tolerance);
-  const fitSymbols = options.fitSymbols ?? DEFAULT_FIT_SYMBOLS;
-  if (!Number.isInteger(fitSymbols) || fitSymbols < 1)
-    throw new OptionError('analyze', 'fitSymbols', 'an integer ≥ 1', fitSymbols);
+  const { skipSymbols, skipTailSymbols: skipTail, modulationTolerance: tolerance, fitSymbols } = resolveAnalyzeOptions(options);
   const chain = defaultReceiver(settings);
   const hasher: InputHasher = options.inputHasher?.() ?? new Sha256();
   const kept = options.keepSymbols ? new SymbolCollector() : null;
