@@ -101,14 +101,17 @@ export * from './modulation/constellation.js';
 export * from './modulation/moment-snr.js';
 export * from './physics/jones.js';
 export * from './physics/link.js';
+export * from './pipeline/block-checks.js';
 export * from './pipeline/blocks.js';
 export * from './pipeline/decimated-trace.js';
+export * from './pipeline/dual-pol-buffer.js';
 export * from './pipeline/pipe.js';
 export * from './pipeline/stage.js';
 export * from './prbs/prbs.js';
 export * from './random/rng.js';
 export * from './receiver/default-chain.js';
 export * from './receiver/registry.js';
+export * from './receiver/run-receiver.js';
 export { InterpolationKernel, type LowpassSpec } from './resample/interpolation-kernel.js';
 export {
   type MatchedFilterDiagnostics,

@@ -1,6 +1,7 @@
+import { checkBlock } from '../pipeline/block-checks.js';
 import { type BlockOf, emptyBlock, type FieldBlock, fieldBlock } from '../pipeline/blocks.js';
 import { LeadingSpan } from '../pipeline/leading-span.js';
-import { BlockError, OptionError, type Stage, type StageRecord } from '../pipeline/stage.js';
+import { OptionError, type Stage, type StageRecord } from '../pipeline/stage.js';
 import type { ComplexArray } from '../signal/complex.js';
 import { estimateOffsetPeriodogram } from './fourth-power-periodogram.js';
 import { removeFrequencyOffset } from './frequency-removal.js';
@@ -70,8 +71,7 @@ class CoarseFrequency<D extends WaveformDomain> implements Stage<D, D, CoarseFre
 
   process(input: BlockOf<D>): BlockOf<D> {
     const block = input as FieldBlock;
-    if (block.domain !== this.input)
-      throw new BlockError(`${NAME}: expected a '${this.input}' block, received '${block.domain}'`);
+    checkBlock(NAME, block, this.input);
     if (this.span.ready) return this.shift(block);
     const r = this.span.push(block);
     if (!r) return emptyBlock(this.output, block.sampleRate, block.samplesPerSymbol);

@@ -1,5 +1,6 @@
+import { checkBlock } from '../pipeline/block-checks.js';
 import { type FieldBlock, fieldBlock } from '../pipeline/blocks.js';
-import { BlockError, type Stage, type StageRecord } from '../pipeline/stage.js';
+import type { Stage, StageRecord } from '../pipeline/stage.js';
 import { type ComplexArray, complexArray } from '../signal/complex.js';
 
 /**
@@ -70,9 +71,7 @@ class DifferentialDecoder implements Stage<'symbols', 'symbols', DifferentialDec
   private count = 0;
 
   process(block: FieldBlock<'symbols'>): FieldBlock<'symbols'> {
-    if (block.domain !== 'symbols') throw new BlockError(`${this.name}: expected a 'symbols' block, received '${block.domain}'`);
-    if (block.x.length !== block.y.length)
-      throw new BlockError(`${this.name}: x has ${block.x.length >> 1} symbols, y has ${block.y.length >> 1}`);
+    checkBlock(this.name, block, 'symbols');
     const x = complexArray(block.x.length >> 1);
     const y = complexArray(block.y.length >> 1);
     this.qx = decode(block.x, x, this.qx);

@@ -1,5 +1,6 @@
+import { checkBlock, checkRate } from '../pipeline/block-checks.js';
 import { type FieldBlock, fieldBlock } from '../pipeline/blocks.js';
-import { BlockError, OptionError, type Stage, type StageRecord } from '../pipeline/stage.js';
+import { OptionError, type Stage, type StageRecord } from '../pipeline/stage.js';
 import { type ComplexArray, complexArray, concatComplex } from '../signal/complex.js';
 import { estimateOffsetDifferential } from './differential-frequency.js';
 import { estimateOffsetPeriodogram } from './fourth-power-periodogram.js';
@@ -128,14 +129,8 @@ class FrequencyOffsetStage implements Stage<'symbols', 'symbols', FrequencyOffse
   }
 
   process(block: FieldBlock<'symbols'>): FieldBlock<'symbols'> {
-    if (block.domain !== 'symbols') throw new BlockError(`${NAME}: expected a 'symbols' block, received '${block.domain}'`);
-    if (block.x.length !== block.y.length)
-      throw new BlockError(`${NAME}: x has ${block.x.length >> 1} symbols, y has ${block.y.length >> 1}`);
-    if (!(block.sampleRate > 0) || !Number.isFinite(block.sampleRate))
-      throw new BlockError(`${NAME}: expected a positive symbol rate as the block's sample rate, received ${block.sampleRate}`);
-    if (!Number.isNaN(this.sampleRate) && block.sampleRate !== this.sampleRate)
-      throw new BlockError(`${NAME}: the symbol rate changed mid-stream from ${this.sampleRate} to ${block.sampleRate}`);
-    this.sampleRate = block.sampleRate;
+    checkBlock(NAME, block, 'symbols');
+    this.sampleRate = checkRate(NAME, this.sampleRate, block.sampleRate);
     const n = block.x.length >> 1;
     const outX: ComplexArray[] = [];
     const outY: ComplexArray[] = [];

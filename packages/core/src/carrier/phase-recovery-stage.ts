@@ -1,9 +1,10 @@
 import { type Constellation, checkModulation, constellation, type ModulationName } from '../modulation/constellation.js';
 import { snrFromMoments } from '../modulation/moment-snr.js';
+import { checkBlock, checkRate } from '../pipeline/block-checks.js';
 import { type FieldBlock, fieldBlock } from '../pipeline/blocks.js';
 import { DecimatedTrace } from '../pipeline/decimated-trace.js';
 import { LeadingSpan } from '../pipeline/leading-span.js';
-import { BlockError, type JsonValue, OptionError, type Stage, type StageRecord } from '../pipeline/stage.js';
+import { type JsonValue, OptionError, type Stage, type StageRecord } from '../pipeline/stage.js';
 import { type ComplexArray, complexArray } from '../signal/complex.js';
 import type { DualPol } from '../signal/dual-pol.js';
 import { BlindPhaseSearchKernel, type BlindPhaseSearchOptions, CoarseFinePhaseKernel } from './blind-phase-search.js';
@@ -327,16 +328,8 @@ class PhaseRecoveryStage implements Stage<'symbols', 'symbols', PhaseRecoveryDia
   }
 
   process(block: FieldBlock<'symbols'>): FieldBlock<'symbols'> {
-    if (block.domain !== 'symbols') throw new BlockError(`${this.name}: expected a 'symbols' block, received '${block.domain}'`);
-    if (block.x.length !== block.y.length)
-      throw new BlockError(`${this.name}: x has ${block.x.length >> 1} symbols, y has ${block.y.length >> 1}`);
-    if (!(block.sampleRate > 0) || !Number.isFinite(block.sampleRate))
-      throw new BlockError(
-        `${this.name}: expected a positive symbol rate as the block's sample rate, received ${block.sampleRate}`,
-      );
-    if (!Number.isNaN(this.sampleRate) && block.sampleRate !== this.sampleRate)
-      throw new BlockError(`${this.name}: the symbol rate changed mid-stream from ${this.sampleRate} to ${block.sampleRate}`);
-    this.sampleRate = block.sampleRate;
+    checkBlock(this.name, block, 'symbols');
+    this.sampleRate = checkRate(this.name, this.sampleRate, block.sampleRate);
     const n = block.x.length >> 1;
     this.pushed += n;
     if (this.kernel === null && this.calibrates()) {

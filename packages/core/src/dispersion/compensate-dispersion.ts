@@ -1,8 +1,9 @@
 import { combineRails } from '../frontend/combine-channels.js';
 import { deskewChannels } from '../frontend/deskew-channels.js';
 import { estimateIqSkew, fieldToChannels, type IqSkewEstimate } from '../frontend/iq-skew.js';
+import { checkBlock, checkRate } from '../pipeline/block-checks.js';
 import { type FieldBlock, fieldBlock } from '../pipeline/blocks.js';
-import { BlockError, OptionError, type Stage, type StageRecord } from '../pipeline/stage.js';
+import { OptionError, type Stage, type StageRecord } from '../pipeline/stage.js';
 import { type ComplexArray, concatComplex } from '../signal/complex.js';
 import type { DualPol } from '../signal/dual-pol.js';
 import { type BlindDispersionOptions, estimateDispersion } from './blind-dispersion.js';
@@ -165,13 +166,8 @@ class CompensateDispersion implements Stage<'twoSps', 'twoSps', CompensateDisper
   }
 
   process(block: FieldBlock<'twoSps'>): FieldBlock<'twoSps'> {
-    if (block.domain !== 'twoSps') throw new BlockError(`${this.name}: expected a 'twoSps' block, received '${block.domain}'`);
-    if (!Number.isNaN(this.sampleRate) && block.sampleRate !== this.sampleRate) {
-      throw new BlockError(
-        `${this.name}: the sample rate changed from ${this.sampleRate} to ${block.sampleRate} Sa/s mid-stream`,
-      );
-    }
-    this.sampleRate = block.sampleRate;
+    checkBlock(this.name, block, 'twoSps');
+    this.sampleRate = checkRate(this.name, this.sampleRate, block.sampleRate);
     if (!this.ex) {
       if (this.span === 0) this.build(this.given as number);
       else {

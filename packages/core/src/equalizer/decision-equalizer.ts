@@ -5,9 +5,10 @@ import {
   type ModulationName,
   nearestLevel,
 } from '../modulation/constellation.js';
+import { checkBlock, checkRate } from '../pipeline/block-checks.js';
 import { type FieldBlock, fieldBlock } from '../pipeline/blocks.js';
 import { LeadingSpan } from '../pipeline/leading-span.js';
-import { BlockError, OptionError, type Stage, type StageRecord } from '../pipeline/stage.js';
+import { OptionError, type Stage, type StageRecord } from '../pipeline/stage.js';
 import { type ComplexArray, complexArray } from '../signal/complex.js';
 import { butterflyOutput, FILTER_XX, FILTER_XY, FILTER_YX, FILTER_YY, updateRow } from './butterfly-kernel.js';
 import type { ButterflyTaps } from './equalizer.js';
@@ -128,12 +129,8 @@ class DecisionEqualizer implements Stage<'symbols', 'symbols', DecisionEqualizer
   }
 
   process(block: FieldBlock<'symbols'>): FieldBlock<'symbols'> {
-    if (block.domain !== 'symbols') throw new BlockError(`${NAME}: expected a 'symbols' block, received '${block.domain}'`);
-    if (block.x.length !== block.y.length)
-      throw new BlockError(`${NAME}: x has ${block.x.length >> 1} symbols, y has ${block.y.length >> 1}`);
-    if (!Number.isNaN(this.sampleRate) && block.sampleRate !== this.sampleRate)
-      throw new BlockError(`${NAME}: the symbol rate changed mid-stream from ${this.sampleRate} to ${block.sampleRate}`);
-    this.sampleRate = block.sampleRate;
+    checkBlock(NAME, block, 'symbols');
+    this.sampleRate = checkRate(NAME, this.sampleRate, block.sampleRate);
     if (this.span !== null) {
       const held = this.span.push(block);
       return held === null ? this.out(complexArray(0), complexArray(0)) : this.startFromHeld(held, false);

@@ -1,4 +1,5 @@
 import { checkModulation, constellation, type ModulationName } from '../modulation/constellation.js';
+import { checkBlock, checkRate } from '../pipeline/block-checks.js';
 import { type FieldBlock, fieldBlock } from '../pipeline/blocks.js';
 import { DecimatedTrace } from '../pipeline/decimated-trace.js';
 import { BlockError, type JsonValue, OptionError, type Stage, type StageRecord } from '../pipeline/stage.js';
@@ -467,17 +468,11 @@ class ButterflyEqualizer implements Stage<'twoSps', 'symbols', EqualizerDiagnost
   }
 
   process(block: FieldBlock<'twoSps'>): FieldBlock<'symbols'> {
-    if (block.domain !== 'twoSps') throw new BlockError(`${NAME}: expected a 'twoSps' block, received '${block.domain}'`);
+    checkBlock(NAME, block, 'twoSps');
     if (block.samplesPerSymbol !== 2) {
       throw new BlockError(`${NAME}: expected 2 samples per symbol, received ${block.samplesPerSymbol}`);
     }
-    if (block.y.length !== block.x.length) {
-      throw new BlockError(`${NAME}: x has ${block.x.length >> 1} samples, y has ${block.y.length >> 1}`);
-    }
-    if (!Number.isNaN(this.sampleRate) && block.sampleRate !== this.sampleRate) {
-      throw new BlockError(`${NAME}: sample rate changed mid-stream from ${this.sampleRate} to ${block.sampleRate} Sa/s`);
-    }
-    this.sampleRate = block.sampleRate;
+    this.sampleRate = checkRate(NAME, this.sampleRate, block.sampleRate);
     if (!this.collecting) return this.stream(block.x, block.y, false);
     this.collect(block.x, block.y);
     if (this.collected < 2 * this.o.startSymbols) return this.emptyOutput();

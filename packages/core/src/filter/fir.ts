@@ -1,3 +1,4 @@
+import { checkBlock } from '../pipeline/block-checks.js';
 import { type BlockOf, type FieldBlock, fieldBlock } from '../pipeline/blocks.js';
 import { BlockError, OptionError, type Stage, type StageRecord } from '../pipeline/stage.js';
 import { type ComplexArray, complexArray } from '../signal/complex.js';
@@ -93,8 +94,7 @@ class FirFilter<D extends FieldDomain> implements Stage<D, D, FirDiagnostics> {
 
   process(input: BlockOf<D>): BlockOf<D> {
     const block = input as FieldBlock;
-    if (block.domain !== this.input)
-      throw new BlockError(`${this.name}: expected a '${this.input}' block, received '${block.domain}'`);
+    checkBlock(this.name, block, this.input);
     this.sampleRate = block.sampleRate;
     this.sps = block.samplesPerSymbol;
     return this.run(block.x, block.y);

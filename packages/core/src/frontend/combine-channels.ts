@@ -1,5 +1,6 @@
+import { checkBlock } from '../pipeline/block-checks.js';
 import { type ChannelBlock, type FieldBlock, fieldBlock } from '../pipeline/blocks.js';
-import { BlockError, type Stage, type StageRecord } from '../pipeline/stage.js';
+import type { Stage, StageRecord } from '../pipeline/stage.js';
 import { complexArray } from '../signal/complex.js';
 import type { DualPol } from '../signal/dual-pol.js';
 
@@ -43,14 +44,8 @@ class CombineChannels implements Stage<'channels', 'field', CombineDiagnostics> 
   private samples = 0;
 
   process(block: ChannelBlock): FieldBlock<'field'> {
-    if (block.domain !== 'channels')
-      throw new BlockError(`${this.name}: expected a 'channels' block, received '${block.domain}'`);
+    checkBlock(this.name, block, 'channels');
     const n = block.xi.length;
-    if (block.xq.length !== n || block.yi.length !== n || block.yq.length !== n) {
-      throw new BlockError(
-        `${this.name}: channel lengths differ (xi ${n}, xq ${block.xq.length}, yi ${block.yi.length}, yq ${block.yq.length})`,
-      );
-    }
     const { x, y } = combineRails(block);
     this.samples += n;
     return fieldBlock('field', x, y, block.sampleRate, block.samplesPerSymbol);

@@ -1,3 +1,4 @@
+import { checkRate } from '../pipeline/block-checks.js';
 import { type ChannelBlock, emptyBlock } from '../pipeline/blocks.js';
 import { BlockError, OptionError, type Stage, type StageRecord } from '../pipeline/stage.js';
 import { InterpolationKernel } from '../resample/interpolation-kernel.js';
@@ -80,11 +81,7 @@ class DeskewChannels implements Stage<'channels', 'channels', DeskewChannelsDiag
   process(block: ChannelBlock): ChannelBlock {
     checkChannels(this.name, block);
     if (Number.isNaN(this.sampleRate)) this.design(block.sampleRate, block.samplesPerSymbol);
-    else if (block.sampleRate !== this.sampleRate) {
-      throw new BlockError(
-        `${this.name}: the sample rate changed from ${this.sampleRate} to ${block.sampleRate} Sa/s mid-stream`,
-      );
-    }
+    else checkRate(this.name, this.sampleRate, block.sampleRate);
     return this.run([block.xi, block.xq, block.yi, block.yq]);
   }
 

@@ -1,6 +1,7 @@
+import { checkBlock } from '../pipeline/block-checks.js';
 import { type ChannelBlock, emptyBlock } from '../pipeline/blocks.js';
 import { LeadingSpan } from '../pipeline/leading-span.js';
-import { BlockError, OptionError, type Stage, type StageRecord } from '../pipeline/stage.js';
+import { OptionError, type Stage, type StageRecord } from '../pipeline/stage.js';
 import type { ChannelName } from '../signal/dual-pol.js';
 
 /** Options of {@link normalizeChannels}. */
@@ -235,11 +236,5 @@ class NormalizeChannels implements Stage<'channels', 'channels', NormalizeChanne
  * @throws BlockError otherwise
  */
 export function checkChannels(stage: string, block: ChannelBlock): void {
-  if (block.domain !== 'channels') throw new BlockError(`${stage}: expected a 'channels' block, received '${block.domain}'`);
-  const n = block.xi.length;
-  if (block.xq.length !== n || block.yi.length !== n || block.yq.length !== n) {
-    throw new BlockError(
-      `${stage}: channel lengths differ (xi ${n}, xq ${block.xq.length}, yi ${block.yi.length}, yq ${block.yq.length})`,
-    );
-  }
+  checkBlock(stage, block, 'channels');
 }

@@ -1,9 +1,10 @@
 import { OverlapSave, overlapSaveSize, responseOfCenteredTaps } from '../dispersion/overlap-save.js';
 import { ifft } from '../dsp/fft.js';
 import { DEFAULT_ROLL_OFF, rootRaisedCosineSpectrum } from '../dsp/rrc.js';
+import { checkBlock } from '../pipeline/block-checks.js';
 import { type FieldBlock, fieldBlock } from '../pipeline/blocks.js';
 import { type Pipeline, pipe } from '../pipeline/pipe.js';
-import { BlockError, OptionError, type Stage, type StageRecord } from '../pipeline/stage.js';
+import { OptionError, type Stage, type StageRecord } from '../pipeline/stage.js';
 import { type ComplexArray, complexArray } from '../signal/complex.js';
 import { type ResampleDiagnostics, type ResampleOptions, resampleToTwoSps } from './resampler.js';
 
@@ -109,7 +110,7 @@ class RrcMatchedFilter implements Stage<'twoSps', 'twoSps', MatchedFilterDiagnos
   }
 
   process(block: FieldBlock<'twoSps'>): FieldBlock<'twoSps'> {
-    if (block.domain !== 'twoSps') throw new BlockError(`${this.name}: expected a 'twoSps' block, received '${block.domain}'`);
+    checkBlock(this.name, block, 'twoSps');
     this.sampleRate = block.sampleRate;
     const x = this.ex.process(block.x);
     const y = this.ey.process(block.y);

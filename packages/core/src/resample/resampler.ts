@@ -1,3 +1,4 @@
+import { checkBlock, checkRate } from '../pipeline/block-checks.js';
 import { type FieldBlock, fieldBlock } from '../pipeline/blocks.js';
 import { BlockError, OptionError, type Stage, type StageRecord } from '../pipeline/stage.js';
 import { type ComplexArray, complexArray } from '../signal/complex.js';
@@ -278,7 +279,7 @@ class ResampleToTwoSps implements Stage<'field', 'twoSps', ResampleDiagnostics> 
   }
 
   process(block: FieldBlock<'field'>): FieldBlock<'twoSps'> {
-    if (block.domain !== 'field') throw new BlockError(`${this.name}: expected a 'field' block, received '${block.domain}'`);
+    checkBlock(this.name, block, 'field');
     if (!this.engine) {
       const rs = this.symbolRate ?? block.sampleRate / block.samplesPerSymbol;
       if (!(rs > 0 && Number.isFinite(rs) && block.sampleRate > 0)) {
@@ -291,9 +292,7 @@ class ResampleToTwoSps implements Stage<'field', 'twoSps', ResampleDiagnostics> 
       const pass =
         this.passbandHz === undefined ? undefined : Math.min(this.passbandHz, 0.45 * Math.min(this.inputRate, this.outputRate));
       this.engine = new Resampler(this.inputRate, this.outputRate, this.attenuationDb, pass);
-    } else if (block.sampleRate !== this.inputRate) {
-      throw new BlockError(`${this.name}: the sample rate changed from ${this.inputRate} to ${block.sampleRate} Sa/s mid-stream`);
-    }
+    } else checkRate(this.name, this.inputRate, block.sampleRate);
     const { x, y } = this.engine.process(block.x, block.y);
     this.delivered += x.length >> 1;
     return fieldBlock('twoSps', x, y, this.outputRate, 2);

@@ -1,5 +1,6 @@
 import { DEFAULT_ROLL_OFF } from '../dsp/rrc.js';
 import { MIN_TIMING_LINE } from '../frontend/iq-skew.js';
+import { checkBlock, checkRate } from '../pipeline/block-checks.js';
 import { type FieldBlock, fieldBlock } from '../pipeline/blocks.js';
 import { BlockError, OptionError, type Stage, type StageRecord } from '../pipeline/stage.js';
 import { dotComplex, InterpolationKernel } from '../resample/interpolation-kernel.js';
@@ -229,13 +230,8 @@ class GardnerClockRecovery implements Stage<'twoSps', 'twoSps', GardnerDiagnosti
   }
 
   process(block: FieldBlock<'twoSps'>): FieldBlock<'twoSps'> {
-    if (block.domain !== 'twoSps') throw new BlockError(`${this.name}: expected a 'twoSps' block, received '${block.domain}'`);
-    if (!Number.isNaN(this.sampleRate) && block.sampleRate !== this.sampleRate) {
-      throw new BlockError(
-        `${this.name}: the sample rate changed from ${this.sampleRate} to ${block.sampleRate} Sa/s mid-stream`,
-      );
-    }
-    this.sampleRate = block.sampleRate;
+    checkBlock(this.name, block, 'twoSps');
+    this.sampleRate = checkRate(this.name, this.sampleRate, block.sampleRate);
     this.append(block.x, block.y);
     if (!this.started) {
       if (this.initial === 'square-timing' && this.received < this.acquisition) return this.emptyOut();

@@ -1,6 +1,6 @@
 import { createHash } from 'node:crypto';
-import type { ReceiverSettings } from '@intradyne/core';
-import { type AnalysisResult, type AnalyzeOptions, analyzeCapture, type InputHasher } from '@intradyne/metrics';
+import type { InputHasher, ReceiverSettings } from '@intradyne/core';
+import { type AnalysisResult, type AnalyzeOptions, analyzeCapture } from '@intradyne/metrics';
 import { type CaptureDescription, openCapture } from '../capture/capture.js';
 import { InputError } from '../errors/input-error.js';
 import { UsageError } from '../errors/usage-error.js';

@@ -2,22 +2,22 @@ import {
   type ChannelBlock,
   type ChannelSpectra,
   ChannelSpectraEstimator,
-  type ComplexArray,
   type CycleSlip,
   constellation,
   type DualPol,
+  DualPolBuffer,
   type dataAidedRule,
   defaultReceiver,
   type FieldBlock,
+  type InputHasher,
   LIBRARY_VERSION,
-  littleEndianBytes,
   type NoReplacement,
   OptionError,
   type ReceiverDiagnostics,
   type ReceiverSettings,
   type ReceiverStages,
   type ReplacedStages,
-  Sha256,
+  runReceiver,
   type StageRecord,
   type StagesWith,
 } from '@intradyne/core';
@@ -58,7 +58,7 @@ export interface AnalyzeOptions {
   /** Gather the data of the report's pictures in bounded memory (default false): see {@link PlotData}. */
   readonly plotData?: boolean;
   /**
-   * The SHA-256 hasher of the input samples (default core's {@link Sha256}):
+   * The SHA-256 hasher of the input samples (default core's Sha256):
    * a caller with a native one (Node's crypto, WebCrypto in a worker) passes
    * a factory of it; the digest must be the same.
    */
@@ -74,14 +74,6 @@ export interface AnalyzeOptions {
    * over on each iteration), and costs two passes.
    */
   readonly equalizerTraining?: EqualizerTrainingMode;
-}
-
-/** What {@link AnalyzeOptions.inputHasher} makes: an incremental SHA-256. */
-export interface InputHasher {
-  /** Adds bytes to the message. */
-  update(bytes: Uint8Array): unknown;
-  /** The digest as 64 lower-case hex digits. */
-  hex(): string;
 }
 
 /** How the equalizer of an analysis was adapted (see {@link AnalyzeOptions.equalizerTraining}). */
@@ -305,12 +297,12 @@ function analyzeOnce<R extends ReplacedStages>(
 ): AnalysisResult<ReceiverDiagnostics<StagesWith<R>>> {
   const { skipSymbols, skipTailSymbols: skipTail, modulationTolerance: tolerance, fitSymbols } = resolveAnalyzeOptions(options);
   const chain = defaultReceiver(settings);
-  const hasher: InputHasher = options.inputHasher?.() ?? new Sha256();
-  const kept = options.keepSymbols ? new SymbolCollector() : null;
+  const kept = options.keepSymbols ? new DualPolBuffer(1 << 14) : null;
   const density = options.plotData
     ? new ConstellationDensity(settings.modulation, { skipLeading: skipSymbols, skipTrailing: skipTail })
     : null;
-  let spectra: ChannelSpectraEstimator | null = null;
+  // The input spectra's estimator, made at the first block (its rate).
+  const input: { spectra: ChannelSpectraEstimator | null } = { spectra: null };
   // What measure() throws is held until the end: the equalizer's verdict comes first.
   let measureError: unknown = null;
   let stream: MeasurementStream | null = null;
@@ -325,10 +317,8 @@ function analyzeOnce<R extends ReplacedStages>(
   }
   // The last skipTail symbols are held back from the measurement until the stream ends.
   const held = new HoldBack(skipTail);
-  let symbols = 0;
   const take = (b: FieldBlock<'symbols'>) => {
-    symbols += b.x.length >> 1;
-    kept?.add(b);
+    kept?.append(b.x, b.y);
     density?.push(b);
     options.onSymbols?.({ x: b.x, y: b.y });
     const measured = held.push(b);
@@ -339,26 +329,23 @@ function analyzeOnce<R extends ReplacedStages>(
       measureError = e;
     }
   };
-  let samples = 0;
-  for (const block of blocks) {
-    hashRows(hasher, block);
-    samples += block.xi.length;
-    if (options.plotData) {
-      spectra ??= new ChannelSpectraEstimator(block.sampleRate);
-      spectra.push(block);
-    }
-    take(chain.process(block));
-  }
-  const tail = chain.flush();
-  if (tail) take(tail);
-  const diagnostics = chain.diagnostics();
+  const run = runReceiver(blocks, chain, take, {
+    hasher: options.inputHasher,
+    onInput: options.plotData
+      ? (block) => {
+          input.spectra ??= new ChannelSpectraEstimator(block.sampleRate);
+          input.spectra.push(block);
+        }
+      : undefined,
+  });
+  const { diagnostics, symbols } = run;
   const record: ReproducibilityRecord = {
     library: 'intradyne',
     version: LIBRARY_VERSION,
-    pipeline: chain.describe(),
+    pipeline: run.pipeline,
     analysis: { equalizerTraining, skipSymbols, skipTailSymbols: skipTail, modulationTolerance: tolerance, fitSymbols },
-    inputSha256: hasher.hex(),
-    samples,
+    inputSha256: run.inputSha256,
+    samples: run.samples,
   };
   const base = {
     // The coarse shift before the matched filter plus the residual found after the equalizer.
@@ -369,8 +356,8 @@ function analyzeOnce<R extends ReplacedStages>(
     linewidthHz: numberField(diagnostics.phase, 'linewidthHz'),
     diagnostics,
     symbols,
-    recovered: kept ? kept.result() : null,
-    plotData: density ? { constellation: density.result(), inputSpectra: spectra?.result() ?? null } : null,
+    recovered: kept ? kept.copy() : null,
+    plotData: density ? { constellation: density.result(), inputSpectra: input.spectra?.result() ?? null } : null,
     record,
   };
   const failed = (
@@ -557,68 +544,20 @@ function equalizerReport(d: unknown): EqualizerReport | null {
   return d as EqualizerReport;
 }
 
-/** Hashes a block as rows (xi, xq, yi, yq) of little-endian float64, so that the digest does not depend on block boundaries. */
-function hashRows(h: InputHasher, b: ChannelBlock): void {
-  const n = b.xi.length;
-  const rows = new Float64Array(4 * n);
-  for (let k = 0; k < n; k++) {
-    rows[4 * k] = b.xi[k];
-    rows[4 * k + 1] = b.xq[k];
-    rows[4 * k + 2] = b.yi[k];
-    rows[4 * k + 3] = b.yq[k];
-  }
-  h.update(littleEndianBytes(rows));
-}
-
 /** Delays a symbol stream by `hold` symbols: what is pushed comes out once `hold` later symbols have arrived. */
 class HoldBack {
-  private x = new Float64Array(0);
-  private y = new Float64Array(0);
+  private readonly held = new DualPolBuffer();
 
   constructor(private readonly hold: number) {}
 
   /** Returns the symbols now released (null when none). */
   push(b: FieldBlock<'symbols'>): DualPol | null {
     if (this.hold === 0) return { x: b.x, y: b.y };
-    const n = (this.x.length + b.x.length) >> 1;
-    const x = new Float64Array(2 * n);
-    const y = new Float64Array(2 * n);
-    x.set(this.x);
-    x.set(b.x, this.x.length);
-    y.set(this.y);
-    y.set(b.y, this.y.length);
-    const out = Math.max(0, n - this.hold);
-    this.x = x.slice(2 * out);
-    this.y = y.slice(2 * out);
-    if (out === 0) return null;
-    return { x: x.subarray(0, 2 * out) as ComplexArray, y: y.subarray(0, 2 * out) as ComplexArray };
-  }
-}
-
-/** Appends symbol blocks into growing arrays (amortized doubling). */
-class SymbolCollector {
-  private x = new Float64Array(1 << 14);
-  private y = new Float64Array(1 << 14);
-  private used = 0;
-
-  add(b: FieldBlock<'symbols'>): void {
-    const need = this.used + b.x.length;
-    if (need > this.x.length) {
-      let size = this.x.length;
-      while (size < need) size *= 2;
-      const nx = new Float64Array(size);
-      const ny = new Float64Array(size);
-      nx.set(this.x.subarray(0, this.used));
-      ny.set(this.y.subarray(0, this.used));
-      this.x = nx;
-      this.y = ny;
-    }
-    this.x.set(b.x, this.used);
-    this.y.set(b.y, this.used);
-    this.used = need;
-  }
-
-  result(): DualPol {
-    return { x: this.x.slice(0, this.used) as ComplexArray, y: this.y.slice(0, this.used) as ComplexArray };
+    this.held.append(b.x, b.y);
+    const out = this.held.length - this.hold;
+    if (out <= 0) return null;
+    const released = this.held.copy(0, out);
+    this.held.dropFront(out);
+    return released;
   }
 }
