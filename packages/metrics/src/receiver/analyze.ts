@@ -18,6 +18,7 @@ import {
   Sha256,
   type StageRecord,
 } from '@intradyne/core';
+import { type CompactReference, isCompactReference, referencePoints } from '../counting/compact-reference.js';
 import { ConstellationDensity, type ConstellationHistogram } from '../density/constellation-density.js';
 import { DEFAULT_FIT_SYMBOLS, type Measurement, MeasurementStream, ReferenceNotFoundError } from '../measure/measure.js';
 import { snrForBer, theoryBer } from '../theory/qam-ber.js';
@@ -219,14 +220,15 @@ export interface AnalysisResult {
  * The result does not depend on how the capture is cut into blocks.
  * @param blocks the capture, in blocks of any sizes (or one block)
  * @param settings what the descriptor says, and chain options
- * @param reference transmitted symbols, any scale; periodic when shorter than the capture
+ * @param reference transmitted symbols, any scale; periodic when shorter than the capture; or their labels
+ *   ({@link CompactReference}: 2 bytes per symbol, what keeps a reference as long as the capture cheap)
  * @throws OptionError for bad settings or options; what a stage throws for malformed blocks
  * @example const r = analyzeCapture([block], { modulation: '16qam', symbolRate: 32e9, sampleRate: 80e9 }, ref); r.ok && r.measurement.ber;
  */
 export function analyzeCapture(
   blocks: Iterable<ChannelBlock>,
   settings: ReceiverSettings,
-  reference: DualPol,
+  reference: DualPol | CompactReference,
   options: AnalyzeOptions = {},
 ): AnalysisResult {
   const training = options.equalizerTraining ?? 'blind';
@@ -255,7 +257,9 @@ export function analyzeCapture(
   }
   const target = (p: 'x' | 'y') => {
     const a = m.perPol[p].alignment;
-    return { symbols: reference[a.source], delay: a.delay, conjugated: a.conjugated };
+    // The data-aided equalizer needs the symbols themselves: labels become their points here.
+    const symbols = isCompactReference(reference) ? referencePoints(reference, a.source) : reference[a.source];
+    return { symbols, delay: a.delay, conjugated: a.conjugated };
   };
   const equalizer = { ...settings.options?.equalizer, training: { x: target('x'), y: target('y') } };
   return analyzeOnce(blocks, { ...settings, options: { ...settings.options, equalizer } }, reference, options, 'data-aided');
@@ -264,7 +268,7 @@ export function analyzeCapture(
 function analyzeOnce(
   blocks: Iterable<ChannelBlock>,
   settings: ReceiverSettings,
-  reference: DualPol,
+  reference: DualPol | CompactReference,
   options: AnalyzeOptions,
   equalizerTraining: EqualizerTrainingMode,
 ): AnalysisResult {
