@@ -33,9 +33,10 @@ export type SequenceReader = (q: PolName, from: number, count: number, out: Floa
 export function sequenceReader(source: ReferenceSource, differential: boolean): SequenceReader {
   if (!differential) return (q, from, count, out) => source.read(q, from, count, out);
   return (q, from, count, out) => {
-    // tⱼ·t*ⱼ₋₁ for j = from … from + count − 1: read one symbol more in front, then multiply in place from the end.
+    // tⱼ·t*ⱼ₋₁ for j = from … from + count − 1: read one symbol more in front, then multiply in place,
+    // forwards (out[k] is still a symbol when out[k − 1] becomes a product).
     source.read(q, from - 1, count + 1, out);
-    for (let k = count; k >= 1; k--) {
+    for (let k = 1; k <= count; k++) {
       const ar = out[2 * k];
       const ai = out[2 * k + 1];
       const br = out[2 * k - 2];
