@@ -63,7 +63,7 @@ export const DEFAULT_FIT_SYMBOLS = 2 ** 18;
  * default N), and a decision flips only within ĝ's error of a threshold.
  *
  * It also detects cycle slips against the reference on the aligned,
- * normalized symbols ({@link ReferenceSlipDetector}, Taylor 2009), as
+ * normalized symbols ({@link @intradyne/core!ReferenceSlipDetector}, Taylor 2009), as
  * `cycleSlipsAgainstReference` would on the whole stream.
  * @throws OptionError for bad options
  * @example
