@@ -213,11 +213,18 @@ export class MeasurementStream {
 }
 
 /**
- * Checks a reference before it is used: finite symbols, or labels of the modulation measured.
- * @throws RangeError for a non-finite symbol; OptionError for labels of another modulation
+ * Checks a reference before it is used: polarizations of equal lengths, and finite symbols or labels
+ * of the modulation measured.
+ * @throws RangeError for unequal lengths or a non-finite symbol; OptionError for labels of another modulation
  */
 export function requireReference(reference: DualPol | CompactReference, modulation: ModulationName): void {
-  if (isCompactReference(reference)) {
+  const compact = isCompactReference(reference);
+  const [nx, ny] = compact
+    ? [reference.labels.x.length, reference.labels.y.length]
+    : [reference.x.length >> 1, reference.y.length >> 1];
+  if (nx !== ny || (compact && nx !== reference.symbols))
+    throw new RangeError(`${NAME}: reference x has ${nx} symbols, y has ${ny}${compact ? `, ${reference.symbols} stated` : ''}`);
+  if (compact) {
     if (reference.modulation !== modulation)
       throw new OptionError(NAME, 'modulation', `the reference's modulation (${reference.modulation})`, modulation);
     return;

@@ -100,6 +100,12 @@ describe('MeasurementStream', () => {
     expect(m.evmRms).toBeCloseTo(whole.evmRms, 12);
     expect(m.gmi).toBeCloseTo(whole.gmi, 12);
     expect(() => new MeasurementStream(labels, 'qpsk')).toThrow(OptionError);
+    // Polarizations of unequal lengths are refused before anything reads past the shorter one.
+    const uneven = { x: reference.x, y: reference.y.subarray(2) as ComplexArray };
+    expect(() => new MeasurementStream(uneven, '16qam')).toThrow(/reference x has 2047 symbols, y has 2046/);
+    expect(() => measure(rx, { ...labels, labels: { x: labels.labels.x, y: labels.labels.y.subarray(1) } }, '16qam')).toThrow(
+      RangeError,
+    );
   });
 
   it('with a longer reference holding a looped pattern, grows its lead until the copies part', () => {
