@@ -33,6 +33,7 @@ export {
   descriptorPathFor,
   listCaptures,
   loadReference,
+  loadReferenceLabels,
   openCapture,
   resolveDataPath,
 } from './capture/capture.js';
@@ -48,6 +49,7 @@ export { LIMITS, maxDispersionPsPerNm } from './capture/limits.js';
 export {
   checkReferenceConstellation,
   loadReferenceCsv,
+  loadReferenceLabelsCsv,
   MIN_REFERENCE_SYMBOLS,
   REFERENCE_POINT_TOLERANCE,
 } from './capture/reference.js';

@@ -10,6 +10,7 @@
 
 // Counting.
 export * from './counting/clopper-pearson.js';
+export * from './counting/compact-reference.js';
 export * from './counting/error-count.js';
 export * from './counting/reference-labels.js';
 // Constellation density (the report's picture of the recovered symbols).

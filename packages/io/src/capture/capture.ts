@@ -1,6 +1,7 @@
 import { type Dirent, existsSync, readdirSync, realpathSync, statSync } from 'node:fs';
 import { basename, dirname, extname, join, resolve } from 'node:path';
 import { type ChannelBlock, constellation, type DualPol, type ModulationName } from '@intradyne/core';
+import type { CompactReference } from '@intradyne/metrics';
 import {
   arrowStreamComplete,
   loadReferenceArrow,
@@ -15,7 +16,7 @@ import { readInputText } from '../load/open-file.js';
 import { type CaptureDescriptor, DESCRIPTOR_FIELDS, type FieldValue, parseDescriptor, validateDescriptor } from './descriptor.js';
 import { parseJsonWithPositions, plainJson } from './json-positions.js';
 import { rateProblem } from './limits.js';
-import { checkReferenceConstellation, loadReferenceCsv } from './reference.js';
+import { checkReferenceConstellation, compactReferenceOf, loadReferenceCsv, loadReferenceLabelsCsv } from './reference.js';
 
 /**
  * The command-line option of each descriptor field that an option can
@@ -65,8 +66,12 @@ export interface CaptureDescription {
   readonly dispersionPsPerNm: number | undefined;
   /** Path of the reference symbols file, resolved against the descriptor's folder. */
   readonly referencePath: string;
-  /** Transmitted symbols, as written (any scale), at least 32. */
-  readonly reference: DualPol;
+  /**
+   * The transmitted symbols (at least 32), checked to be of the modulation
+   * and held as their labels: 2 bytes per symbol for both polarizations
+   * (see {@link loadReferenceLabels}).
+   */
+  readonly reference: CompactReference;
   /** What was noticed while opening that does not stop an analysis (an Arrow stream without its end marker…). */
   readonly warnings: readonly string[];
   /**
@@ -209,8 +214,7 @@ export function openCapture(path: string, overrides: Readonly<Record<string, unk
       throw new InputError({ file: dataPath }, 'time column', `a sample rate ${problem}`, `${sampleRate} Sa/s`);
   }
   const referencePath = resolve(dirname(descriptorFile), d.reference);
-  const reference = loadReference(referencePath, descriptorFile, d.reference);
-  checkReferenceConstellation(reference, constellation(d.modulation), referencePath);
+  const reference = loadReferenceLabels(referencePath, descriptorFile, d.modulation, d.reference);
   const samplesPerSymbol = sampleRate / d.symbolRate;
   const rate = sampleRate;
   const csvOptions = (o?: { blockSize?: number }): CsvCaptureOptions => ({
@@ -259,6 +263,34 @@ export function openCapture(path: string, overrides: Readonly<Record<string, unk
  * @example const ref = loadReference('tx-symbols.csv', 'lab/run-07.json'); // CSV or Arrow, checked
  */
 export function loadReference(path: string, descriptorFile: string, written = path): DualPol {
+  const ext = referenceExtension(path, descriptorFile, written);
+  return ext === '.csv' ? loadReferenceCsv(path) : loadReferenceArrow(path);
+}
+
+/**
+ * Loads reference symbols by extension as their labels, checked to be of the
+ * modulation: a CSV file read in passes without holding its numbers
+ * ({@link loadReferenceLabelsCsv}), an Arrow file read whole, checked
+ * ({@link checkReferenceConstellation}) and labelled.
+ * @throws InputError naming the descriptor when the file is missing or of another type, and
+ *   the reference file for any problem of its content
+ * @example const ref = loadReferenceLabels('tx-symbols.csv', 'lab/run-07.json', '16qam'); ref.symbols;
+ */
+export function loadReferenceLabels(
+  path: string,
+  descriptorFile: string,
+  modulation: ModulationName,
+  written = path,
+): CompactReference {
+  const ext = referenceExtension(path, descriptorFile, written);
+  if (ext === '.csv') return loadReferenceLabelsCsv(path, modulation);
+  const symbols = loadReferenceArrow(path);
+  checkReferenceConstellation(symbols, constellation(modulation), path);
+  return compactReferenceOf(symbols, modulation, path);
+}
+
+/** The reference file's extension, '.csv', '.arrow' or '.arrows', checked with the file's existence. */
+function referenceExtension(path: string, descriptorFile: string, written: string): string {
   // A broken symbolic link does not exist either.
   if (!existsSync(path)) {
     throw new InputError(
@@ -269,8 +301,7 @@ export function loadReference(path: string, descriptorFile: string, written = pa
     );
   }
   const ext = extname(path).toLowerCase();
-  if (ext === '.csv') return loadReferenceCsv(path);
-  if (ext === '.arrow' || ext === '.arrows') return loadReferenceArrow(path);
+  if (ext === '.csv' || ext === '.arrow' || ext === '.arrows') return ext;
   throw new InputError({ file: descriptorFile }, "field 'reference'", 'a .csv, .arrow or .arrows file', JSON.stringify(written));
 }
 

@@ -28,8 +28,10 @@ export const LIMITS = {
    */
   maxDispersionTaps: 1 << 18,
   /**
-   * Reference symbols: 2^24 (16.8 million). A reference is held in memory
-   * (two polarizations of complex float64: 512 MB at the bound); transmitted
+   * Reference symbols: 2^24 (16.8 million). An analysis holds a reference as
+   * its labels (2 bytes per symbol: 32 MB at the bound); an Arrow reference,
+   * and loadReferenceCsv's symbols, are read whole first (two polarizations
+   * of complex float64: 512 MB at the bound); transmitted
    * patterns are PRBS periods or random blocks of 2^15 to 2^20 symbols.
    */
   maxReferenceSymbols: 1 << 24,

@@ -1,5 +1,13 @@
 import { closeSync } from 'node:fs';
-import { type ComplexArray, type Constellation, complexArray, type DualPol } from '@intradyne/core';
+import {
+  type ComplexArray,
+  type Constellation,
+  complexArray,
+  constellation,
+  type DualPol,
+  type ModulationName,
+} from '@intradyne/core';
+import { type CompactReference, compactReference, ReferenceLabeler } from '@intradyne/metrics';
 import { InputError, withLinkTarget } from '../errors/input-error.js';
 import { BufferFeeder, type HeaderCell, listColumns, NumericCsvTable, type TableBlock } from '../load/csv-table.js';
 import { linkTarget, openInput, readInput } from '../load/open-file.js';
@@ -66,31 +74,7 @@ export function referenceResolver(file: string) {
  */
 export function loadReferenceCsv(path: string): DualPol {
   const blocks: TableBlock[] = [];
-  let rows = 0;
-  const keep = (b: TableBlock) => {
-    rows += b.rows;
-    // Checked as the rows come, so that a huge file is refused before it fills the memory.
-    if (rows > LIMITS.maxReferenceSymbols)
-      throw new InputError(
-        { file: path, line: b.lines[b.rows - 1] },
-        'reference',
-        `at most ${LIMITS.maxReferenceSymbols} symbols`,
-        `more (${rows} rows so far)`,
-      );
-    blocks.push(b);
-  };
-  const table = new NumericCsvTable(path, referenceResolver(path), keep, { blockRows: 65536 });
-  const feeder = new BufferFeeder(table, path);
-  const fd = openInput(path, 'reference');
-  try {
-    while (feeder.feed(readInput(fd, path, 'reference', feeder.buffer, feeder.offset, feeder.room, null))) {
-      // reading
-    }
-  } catch (e) {
-    throw withLinkTarget(e, path, linkTarget(path));
-  } finally {
-    closeSync(fd);
-  }
+  readReferenceBlocks(path, (b) => blocks.push(b));
   let n = 0;
   for (const b of blocks) n += b.rows;
   const x = complexArray(n);
@@ -108,6 +92,149 @@ export function loadReferenceCsv(path: string): DualPol {
   const symbols = { x, y };
   checkReferenceLength(symbols, path);
   return symbols;
+}
+
+/** Rows of a reference kept in memory between the passes of {@link loadReferenceLabelsCsv}: 2^20 (32 MB); a longer file is read again. */
+const HELD_REFERENCE_ROWS = 1 << 20;
+
+/**
+ * Loads a reference CSV as its labels ({@link CompactReference}: 2 bytes
+ * per symbol instead of 32), checked as {@link loadReferenceCsv},
+ * {@link checkReferenceConstellation} and `referenceLabels` check it, in
+ * memory that does not grow with the file beyond the labels: the rows are
+ * read three times (the scales, the checks and the least-squares scale,
+ * the labels), from memory for a file of up to 2^20 rows, from the file
+ * again for a longer one.
+ * @throws InputError for any problem of the file (as {@link loadReferenceCsv}), for a
+ *   reference that is not of the modulation (as {@link checkReferenceConstellation}), and for a
+ *   symbol more than a twentieth of the level spacing from its point after the least-squares scaling
+ * @example const ref = loadReferenceLabelsCsv('tx-symbols.csv', '16qam'); ref.symbols;
+ */
+export function loadReferenceLabelsCsv(path: string, modulation: ModulationName): CompactReference {
+  const c = constellation(modulation);
+  let held: TableBlock[] | null = [];
+  let rows = 0;
+  const peaks = [0, 0];
+  const labelers = [new ReferenceLabeler(c), new ReferenceLabeler(c)];
+  const scratch = complexArray(65536);
+  // Both polarizations of a block, interleaved into the scratch in turn.
+  const eachPol = (b: TableBlock, visit: (p: 0 | 1, z: ComplexArray) => void) => {
+    for (const p of [0, 1] as const) {
+      const re = b.slots[2 * p];
+      const im = b.slots[2 * p + 1];
+      const z = (b.rows * 2 > scratch.length ? complexArray(b.rows) : scratch.subarray(0, 2 * b.rows)) as ComplexArray;
+      for (let i = 0; i < b.rows; i++) {
+        z[2 * i] = re[i];
+        z[2 * i + 1] = im[i];
+      }
+      visit(p, z);
+    }
+  };
+  readReferenceBlocks(path, (b) => {
+    rows += b.rows;
+    if (held !== null) held.push(b);
+    if (held !== null && rows > HELD_REFERENCE_ROWS) held = null;
+    eachPol(b, (p, z) => {
+      let peak = peaks[p];
+      for (let i = 0; i < z.length; i++) peak = Math.max(peak, Math.abs(z[i]));
+      peaks[p] = peak;
+      labelers[p].addPower(z);
+    });
+  });
+  if (rows < MIN_REFERENCE_SYMBOLS) {
+    throw new InputError({ file: path }, 'reference', `at least ${MIN_REFERENCE_SYMBOLS} symbols`, `${rows}`);
+  }
+  const again = (visit: (b: TableBlock) => void) => {
+    if (held !== null) for (const b of held) visit(b);
+    else readReferenceBlocks(path, visit);
+  };
+  const labels = { x: new Uint8Array(rows), y: new Uint8Array(rows) };
+  const out = [labels.x, labels.y];
+  // A scale that cannot be fitted is reported after the constellation checks, which say more.
+  let scaleProblem: unknown = null;
+  for (const p of [0, 1] as const) {
+    try {
+      labelers[p].beginScale(out[p]);
+    } catch (e) {
+      scaleProblem ??= e;
+    }
+  }
+  const check = new ConstellationCheck(c, path, peaks);
+  let first = 0;
+  again((b) => {
+    eachPol(b, (p, z) => {
+      check.add(p, z, first);
+      if (scaleProblem === null) labelers[p].addScale(z, first);
+    });
+    first += b.rows;
+  });
+  check.finish();
+  if (scaleProblem !== null)
+    throw new InputError({ file: path }, 'reference', `${c.name} symbols`, String((scaleProblem as Error).message));
+  for (const l of labelers) l.beginLabels();
+  first = 0;
+  again((b) => {
+    eachPol(b, (p, z) => {
+      const k = labelers[p].label(z, first);
+      if (k < 0) return;
+      throw new InputError(
+        { file: path },
+        `reference symbol ${first + k + 1}, polarization ${p === 0 ? 'x' : 'y'}`,
+        `a point of the ${c.name} constellation after the least-squares scaling (within a twentieth of a level spacing)`,
+        `${z[2 * k]}${z[2 * k + 1] < 0 ? '' : '+'}${z[2 * k + 1]}j`,
+      );
+    });
+    first += b.rows;
+  });
+  return { modulation, symbols: rows, labels };
+}
+
+/** Reads a reference CSV block by block (65,536 rows each), checking the columns and the row limit. */
+function readReferenceBlocks(path: string, onBlock: (b: TableBlock) => void): void {
+  let rows = 0;
+  const keep = (b: TableBlock) => {
+    rows += b.rows;
+    // Checked as the rows come, so that a huge file is refused before it fills the memory.
+    if (rows > LIMITS.maxReferenceSymbols)
+      throw new InputError(
+        { file: path, line: b.lines[b.rows - 1] },
+        'reference',
+        `at most ${LIMITS.maxReferenceSymbols} symbols`,
+        `more (${rows} rows so far)`,
+      );
+    onBlock(b);
+  };
+  const table = new NumericCsvTable(path, referenceResolver(path), keep, { blockRows: 65536 });
+  const feeder = new BufferFeeder(table, path);
+  const fd = openInput(path, 'reference');
+  try {
+    while (feeder.feed(readInput(fd, path, 'reference', feeder.buffer, feeder.offset, feeder.room, null))) {
+      // reading
+    }
+  } catch (e) {
+    throw withLinkTarget(e, path, linkTarget(path));
+  } finally {
+    closeSync(fd);
+  }
+}
+
+/**
+ * A reference loaded as symbols (an Arrow file) made compact: its labels,
+ * with the errors of `referenceLabels` as InputErrors naming the file.
+ * @throws InputError for a symbol too far from its point after the least-squares scaling
+ */
+export function compactReferenceOf(symbols: DualPol, modulation: ModulationName, file: string): CompactReference {
+  try {
+    return compactReference(symbols, modulation);
+  } catch (e) {
+    if (!(e instanceof RangeError)) throw e;
+    throw new InputError(
+      { file },
+      'reference',
+      `points of the ${modulation} constellation after the least-squares scaling (within a twentieth of a level spacing)`,
+      e.message,
+    );
+  }
 }
 
 /** @throws InputError when the reference has fewer than {@link MIN_REFERENCE_SYMBOLS} symbols */
@@ -133,44 +260,85 @@ export function checkReferenceLength(symbols: DualPol, file: string): void {
  * @example checkReferenceConstellation(ref, constellation('16qam'), 'tx-symbols.csv'); // throws InputError for a QPSK reference
  */
 export function checkReferenceConstellation(symbols: DualPol, c: Constellation, file: string): void {
-  const l = c.levelsPerAxis;
-  const outer = (l - 1) * c.scale;
-  const spacing = 2 * c.scale;
-  const used = new Uint32Array(l);
-  for (const [pol, z] of [
-    ['x', symbols.x],
-    ['y', symbols.y],
-  ] as const) {
-    const n = z.length >> 1;
-    let peak = 0;
-    for (let i = 0; i < 2 * n; i++) peak = Math.max(peak, Math.abs(z[i]));
-    if (!(peak > 0)) throw new InputError({ file }, `reference polarization ${pol}`, `${c.name} symbols`, 'all zeros');
-    const g = outer / peak;
-    for (let k = 0; k < n; k++) {
+  const peak = (z: ComplexArray) => {
+    let m = 0;
+    for (let i = 0; i < z.length; i++) m = Math.max(m, Math.abs(z[i]));
+    return m;
+  };
+  const check = new ConstellationCheck(c, file, [peak(symbols.x), peak(symbols.y)]);
+  check.add(0, symbols.x, 0);
+  check.add(1, symbols.y, 0);
+  check.finish();
+}
+
+/**
+ * {@link checkReferenceConstellation} over symbols given in chunks, with the
+ * peaks known beforehand: `add` the chunks of both polarizations in any
+ * interleaving, then `finish` throws what the whole-array check throws
+ * first (polarization x before y, the first symbol off the constellation in
+ * each, then the levels never used).
+ */
+class ConstellationCheck {
+  private readonly used: Uint32Array;
+  private readonly bad: (string | null)[] = [null, null];
+
+  constructor(
+    private readonly c: Constellation,
+    private readonly file: string,
+    private readonly peaks: readonly number[],
+  ) {
+    this.used = new Uint32Array(c.levelsPerAxis);
+  }
+
+  add(p: 0 | 1, z: ComplexArray, first: number): void {
+    const { c } = this;
+    if (this.bad[p] !== null || !(this.peaks[p] > 0)) return;
+    const l = c.levelsPerAxis;
+    const spacing = 2 * c.scale;
+    const g = ((l - 1) * c.scale) / this.peaks[p];
+    const used = this.used;
+    for (let k = 0; k < z.length >> 1; k++) {
       for (let part = 0; part < 2; part++) {
         const v = g * z[2 * k + part];
         const i = levelIndex(c, v);
         const off = Math.abs(v - (2 * i - (l - 1)) * c.scale) / spacing;
         if (!(off <= REFERENCE_POINT_TOLERANCE)) {
-          throw new InputError(
-            { file },
-            `reference symbol ${k + 1}, polarization ${pol}`,
-            `a point of the ${c.name} constellation (after scaling, within ${REFERENCE_POINT_TOLERANCE} of a level spacing; is the modulation right?)`,
-            `${z[2 * k]}${z[2 * k + 1] < 0 ? '' : '+'}${z[2 * k + 1]}j, ${off.toFixed(2)} of a spacing away`,
-          );
+          this.bad[p] =
+            `${first + k + 1}\u0000${z[2 * k]}${z[2 * k + 1] < 0 ? '' : '+'}${z[2 * k + 1]}j, ${off.toFixed(2)} of a spacing away`;
+          return;
         }
         used[i]++;
       }
     }
   }
-  const missing = [...used].filter((u) => u === 0).length;
-  if (missing > 0) {
-    throw new InputError(
-      { file },
-      'reference',
-      `symbols using all ${l} levels per axis of ${c.name} (is the modulation right?)`,
-      `symbols using ${l - missing} of them`,
-    );
+
+  /** @throws InputError as {@link checkReferenceConstellation} */
+  finish(): void {
+    const { c, file } = this;
+    for (const p of [0, 1] as const) {
+      const pol = p === 0 ? 'x' : 'y';
+      if (!(this.peaks[p] > 0)) throw new InputError({ file }, `reference polarization ${pol}`, `${c.name} symbols`, 'all zeros');
+      const bad = this.bad[p];
+      if (bad !== null) {
+        const [symbol, received] = bad.split('\u0000');
+        throw new InputError(
+          { file },
+          `reference symbol ${symbol}, polarization ${pol}`,
+          `a point of the ${c.name} constellation (after scaling, within ${REFERENCE_POINT_TOLERANCE} of a level spacing; is the modulation right?)`,
+          received,
+        );
+      }
+    }
+    const l = c.levelsPerAxis;
+    const missing = [...this.used].filter((u) => u === 0).length;
+    if (missing > 0) {
+      throw new InputError(
+        { file },
+        'reference',
+        `symbols using all ${l} levels per axis of ${c.name} (is the modulation right?)`,
+        `symbols using ${l - missing} of them`,
+      );
+    }
   }
 }
 

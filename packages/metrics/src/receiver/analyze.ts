@@ -21,6 +21,7 @@ import {
   type StageRecord,
   type StagesWith,
 } from '@intradyne/core';
+import { type CompactReference, isCompactReference, referencePoints } from '../counting/compact-reference.js';
 import { ConstellationDensity, type ConstellationHistogram } from '../density/constellation-density.js';
 import { DEFAULT_FIT_SYMBOLS, type Measurement, MeasurementStream, ReferenceNotFoundError } from '../measure/measure.js';
 import { snrForBer, theoryBer } from '../theory/qam-ber.js';
@@ -217,14 +218,15 @@ export interface AnalysisResult<D extends ReceiverDiagnostics<ReceiverStages> = 
  * The result does not depend on how the capture is cut into blocks.
  * @param blocks the capture, in blocks of any sizes (or one block)
  * @param settings what the descriptor says, and chain options
- * @param reference transmitted symbols, any scale; periodic when shorter than the capture
+ * @param reference transmitted symbols, any scale; periodic when shorter than the capture; or their labels
+ *   ({@link CompactReference}: 2 bytes per symbol, what keeps a reference as long as the capture cheap)
  * @throws OptionError for bad settings or options; what a stage throws for malformed blocks
  * @example const r = analyzeCapture([block], { modulation: '16qam', symbolRate: 32e9, sampleRate: 80e9 }, ref); r.ok && r.measurement.ber;
  */
 export function analyzeCapture<R extends ReplacedStages = NoReplacement>(
   blocks: Iterable<ChannelBlock>,
   settings: ReceiverSettings<R>,
-  reference: DualPol,
+  reference: DualPol | CompactReference,
   options: AnalyzeOptions = {},
 ): AnalysisResult<ReceiverDiagnostics<StagesWith<R>>> {
   const training = resolveAnalyzeOptions(options).equalizerTraining;
@@ -251,7 +253,9 @@ export function analyzeCapture<R extends ReplacedStages = NoReplacement>(
   }
   const target = (p: 'x' | 'y') => {
     const a = m.perPol[p].alignment;
-    return { symbols: reference[a.source], delay: a.delay, conjugated: a.conjugated };
+    // The data-aided equalizer needs the symbols themselves: labels become their points here.
+    const symbols = isCompactReference(reference) ? referencePoints(reference, a.source) : reference[a.source];
+    return { symbols, delay: a.delay, conjugated: a.conjugated };
   };
   const equalizer = { ...settings.options?.equalizer, training: { x: target('x'), y: target('y') } };
   return analyzeOnce(blocks, { ...settings, options: { ...settings.options, equalizer } }, reference, options, 'data-aided');
@@ -291,7 +295,7 @@ export function resolveAnalyzeOptions(options: AnalyzeOptions = {}): ResolvedAna
 function analyzeOnce<R extends ReplacedStages>(
   blocks: Iterable<ChannelBlock>,
   settings: ReceiverSettings<R>,
-  reference: DualPol,
+  reference: DualPol | CompactReference,
   options: AnalyzeOptions,
   equalizerTraining: EqualizerTrainingMode,
 ): AnalysisResult<ReceiverDiagnostics<StagesWith<R>>> {

@@ -1,6 +1,8 @@
-import { type ComplexArray, type DualPol, idealMatchedFilter, Rng, simulate } from '@intradyne/core';
+import { type ComplexArray, type DualPol, idealMatchedFilter, OptionError, Rng, simulate } from '@intradyne/core';
 import { describe, expect, it } from 'vitest';
+import { compactReference } from '../../src/counting/compact-reference.js';
 import { MeasurementStream, measure } from '../../src/measure/measure.js';
+import { FULL_PERIOD_SYMBOLS } from '../../src/sync/synchronize.js';
 
 // The symbols an ideal receiver gets from a simulated capture (RRC matched filter at the symbol instants),
 // with a gain and a π/2 rotation on y, as a blind receiver leaves them.
@@ -8,13 +10,13 @@ import { MeasurementStream, measure } from '../../src/measure/measure.js';
 // as the reference, as for a looped pattern in the lab.
 const PERIOD = 2047;
 
-function received(n: number, esN0Db: number, seed: number) {
+function received(n: number, esN0Db: number, seed: number, order: 11 | 15 = 11) {
   const cap = simulate({
     seed,
     modulation: '16qam',
     symbols: n,
     symbolRate: 32e9,
-    source: { kind: 'prbs', order: 11 },
+    source: { kind: 'prbs', order },
     channel: { esN0Db },
   });
   const x = idealMatchedFilter(cap.truth.field.x, n, cap.symbolRate, cap.rollOff);
@@ -84,6 +86,48 @@ describe('MeasurementStream', () => {
     const expected = measure(rx, fullReference, '16qam', { skipSymbols: 1000 });
     const m = streamed(rx, new MeasurementStream(fullReference, '16qam', { skipSymbols: 1000, fitSymbols: 4096 }), 3);
     expect(m).toEqual(expected);
+  });
+
+  it('from the reference as labels: equals measure() with them exactly, and the same figures as with the symbols', () => {
+    const labels = compactReference(reference, '16qam');
+    const expected = measure(rx, labels, '16qam', { skipSymbols: 1000, symbolRate: 32e9 });
+    const m = streamed(rx, new MeasurementStream(labels, '16qam', { skipSymbols: 1000, symbolRate: 32e9 }), 4);
+    expect(m).toEqual(expected);
+    // The labels' points are the simulator's reference points at unit power: the counts are the same,
+    // the sums the same to rounding (the synchronization statistics come from other arithmetic).
+    expect(m.bitErrors).toBe(whole.bitErrors);
+    expect(m.perPol.y.gain).toBeCloseTo(whole.perPol.y.gain, 12);
+    expect(m.evmRms).toBeCloseTo(whole.evmRms, 12);
+    expect(m.gmi).toBeCloseTo(whole.gmi, 12);
+    expect(() => new MeasurementStream(labels, 'qpsk')).toThrow(OptionError);
+    // Polarizations of unequal lengths are refused before anything reads past the shorter one.
+    const uneven = { x: reference.x, y: reference.y.subarray(2) as ComplexArray };
+    expect(() => new MeasurementStream(uneven, '16qam')).toThrow(/reference x has 2047 symbols, y has 2046/);
+    expect(() => measure(rx, { ...labels, labels: { x: labels.labels.x, y: labels.labels.y.subarray(1) } }, '16qam')).toThrow(
+      RangeError,
+    );
+  });
+
+  it('with a longer reference holding a looped pattern, grows its lead until the copies part', () => {
+    // PRBS15 mapped to 16QAM repeats every 32,767 symbols (ITU-T O.150 period 2^15 − 1, coprime with
+    // the 4 bits per symbol); the whole transmitted sequence of 140,000 symbols as the reference holds
+    // it four times and a part, and is longer than a full-period search takes.
+    const long = received(140000, 12, 33, 15);
+    expect(long.fullReference.x.length >> 1).toBeGreaterThan(FULL_PERIOD_SYMBOLS);
+    const ref = compactReference(long.fullReference, '16qam');
+    const all = measure(long.rx, ref, '16qam', { skipSymbols: 1000 });
+    const m = streamed(long.rx, new MeasurementStream(ref, '16qam', { skipSymbols: 1000, fitSymbols: 4096 }), 5);
+    for (const p of ['x', 'y'] as const) {
+      const { source, delay, quarterTurns, conjugated } = all.perPol[p].alignment;
+      expect(m.perPol[p].alignment).toMatchObject({ source, delay, quarterTurns, conjugated });
+    }
+    // The lead grew past the 4,096 symbols asked for: the copies of the pattern tie on them.
+    expect(m.sync.symbolsUsed).toBeGreaterThan(4096);
+    expect(m.symbols).toBe(all.symbols);
+    // As with a leading span above: the decisions flip within the fit's sampling error.
+    const halfWidth = (all.berCi95[1] - all.berCi95[0]) / 2;
+    expect(Math.abs(m.ber - all.ber)).toBeLessThan(0.1 * halfWidth);
+    expect(Math.abs(m.gmi - all.gmi)).toBeLessThan(1e-3);
   });
 
   it('throws what measure() throws: symbols after finish, non-finite symbols with their position', () => {
