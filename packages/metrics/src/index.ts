@@ -13,6 +13,7 @@ export * from './counting/clopper-pearson.js';
 export * from './counting/compact-reference.js';
 export * from './counting/error-count.js';
 export * from './counting/reference-labels.js';
+export * from './counting/reference-mismatch.js';
 // Constellation density (the report's picture of the recovered symbols).
 export * from './density/constellation-density.js';
 // FEC thresholds.

@@ -1,5 +1,6 @@
 import { type ComplexArray, complexArray, constellation, type DualPol, type ModulationName } from '@intradyne/core';
 import { referenceLabels } from './reference-labels.js';
+import { ReferenceMismatchError } from './reference-mismatch.js';
 
 /**
  * Transmitted reference symbols held as their constellation labels: 1 byte
@@ -34,7 +35,7 @@ export function compactReference(reference: DualPol, modulation: ModulationName)
   const c = constellation(modulation);
   const symbols = reference.x.length >> 1;
   if (reference.y.length >> 1 !== symbols)
-    throw new RangeError(`compactReference: reference x has ${symbols} symbols, y has ${reference.y.length >> 1}`);
+    throw new ReferenceMismatchError(`compactReference: reference x has ${symbols} symbols, y has ${reference.y.length >> 1}`);
   return { modulation, symbols, labels: { x: referenceLabels(c, reference.x), y: referenceLabels(c, reference.y) } };
 }
 

@@ -1,4 +1,5 @@
 import { type ComplexArray, type Constellation, decide } from '@intradyne/core';
+import { ReferenceMismatchError } from './reference-mismatch.js';
 
 /**
  * A reference polarization handed over in consecutive chunks: calls `visit`
@@ -39,7 +40,7 @@ export function referenceLabels(c: Constellation, reference: ComplexArray): Uint
  * @example referenceLabelsInChunks(constellation('16qam'), n, (visit) => blocks.forEach((b, i) => visit(b, i * 4096)), labels);
  */
 export function referenceLabelsInChunks(c: Constellation, n: number, chunks: ReferenceChunks, out: Uint8Array): void {
-  if (n === 0) throw new RangeError('referenceLabels: the reference holds no symbols');
+  if (n === 0) throw new ReferenceMismatchError('referenceLabels: the reference holds no symbols');
   const labeler = new ReferenceLabeler(c);
   chunks((chunk) => labeler.addPower(chunk));
   labeler.beginScale(out.subarray(0, n));
@@ -48,7 +49,7 @@ export function referenceLabelsInChunks(c: Constellation, n: number, chunks: Ref
   chunks((chunk, first) => {
     const k = labeler.label(chunk, first);
     if (k >= 0) {
-      throw new RangeError(
+      throw new ReferenceMismatchError(
         `referenceLabels: reference symbol ${first + k} (${chunk[2 * k]}, ${chunk[2 * k + 1]}) is not a ${c.name} point ` +
           '(more than a twentieth of the level spacing away after scaling)',
       );
@@ -100,7 +101,7 @@ export class ReferenceLabeler {
     this.out = out;
     const power = this.power / this.seen;
     if (!(power > 0) || !Number.isFinite(power)) {
-      throw new RangeError(`referenceLabels: the reference must have finite, non-zero power (mean power ${power})`);
+      throw new ReferenceMismatchError(`referenceLabels: the reference must have finite, non-zero power (mean power ${power})`);
     }
     this.g0 = 1 / Math.sqrt(power);
   }

@@ -1,5 +1,6 @@
 import { type ComplexArray, type CycleSlip, type DualPol, type ModulationName, OptionError } from '@intradyne/core';
 import { type CompactReference, isCompactReference } from '../counting/compact-reference.js';
+import { ReferenceMismatchError } from '../counting/reference-mismatch.js';
 import { FULL_PERIOD_SYMBOLS } from '../sync/constants.js';
 import { type ReferenceSource, referenceSource } from '../sync/reference-source.js';
 import type { SyncOutcome } from '../sync/search.js';
@@ -223,7 +224,9 @@ export function requireReference(reference: DualPol | CompactReference, modulati
     ? [reference.labels.x.length, reference.labels.y.length]
     : [reference.x.length >> 1, reference.y.length >> 1];
   if (nx !== ny || (compact && nx !== reference.symbols))
-    throw new RangeError(`${NAME}: reference x has ${nx} symbols, y has ${ny}${compact ? `, ${reference.symbols} stated` : ''}`);
+    throw new ReferenceMismatchError(
+      `${NAME}: reference x has ${nx} symbols, y has ${ny}${compact ? `, ${reference.symbols} stated` : ''}`,
+    );
   if (compact) {
     if (reference.modulation !== modulation)
       throw new OptionError(NAME, 'modulation', `the reference's modulation (${reference.modulation})`, modulation);

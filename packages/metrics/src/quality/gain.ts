@@ -1,4 +1,5 @@
 import type { ComplexArray } from '@intradyne/core';
+import { ReferenceMismatchError } from '../counting/reference-mismatch.js';
 
 /**
  * Real least-squares gain of received symbols r against their reference
@@ -23,6 +24,6 @@ export function leastSquaresGain(received: ComplexArray, reference: ComplexArray
     num += received[i] * reference[i];
     den += reference[i] * reference[i];
   }
-  if (!(den > 0)) throw new RangeError('leastSquaresGain: the reference has no power');
+  if (!(den > 0)) throw new ReferenceMismatchError('leastSquaresGain: the reference has no power');
   return num / den;
 }

@@ -22,6 +22,7 @@ import {
   type StagesWith,
 } from '@intradyne/core';
 import { type CompactReference, isCompactReference, referencePoints } from '../counting/compact-reference.js';
+import { ReferenceMismatchError } from '../counting/reference-mismatch.js';
 import { ConstellationDensity, type ConstellationHistogram } from '../density/constellation-density.js';
 import { DEFAULT_FIT_SYMBOLS, type Measurement, MeasurementStream, ReferenceNotFoundError } from '../measure/measure.js';
 import { snrForBer, theoryBer } from '../theory/qam-ber.js';
@@ -388,8 +389,7 @@ function analyzeOnce<R extends ReplacedStages>(
       if (measureError !== null) throw measureError;
       m = (stream as MeasurementStream).finish();
     } catch (e) {
-      if (e instanceof ReferenceNotFoundError) referenceFailure = { check: 'reference', reason: e.message };
-      else if (e instanceof RangeError && /reference/.test(e.message))
+      if (e instanceof ReferenceNotFoundError || e instanceof ReferenceMismatchError)
         referenceFailure = { check: 'reference', reason: e.message };
       else throw e;
     }

@@ -1,4 +1,5 @@
 import { type ComplexArray, complexArray, type DualPol, fft, OptionError } from '@intradyne/core';
+import { ReferenceMismatchError } from '../counting/reference-mismatch.js';
 import { blockCorrelation, checkScratch, coherentCheck, disagreements } from './candidates.js';
 import { FULL_PERIOD_SYMBOLS, MAX_TIED_DELAYS, MIN_SYNC_SYMBOLS, SEGMENT_SYMBOLS, SYNC_BLOCK_SYMBOLS } from './constants.js';
 import { circularCorrelation, foldOntoPeriod } from './correlation.js';
@@ -42,7 +43,7 @@ export function synchronizeSource(received: DualPol, source: ReferenceSource, o:
   if (received.y.length >> 1 !== nr)
     throw new RangeError(`${NAME}: received x has ${nr} symbols, y has ${received.y.length >> 1}`);
   if (nt < MIN_SYNC_SYMBOLS)
-    throw new RangeError(`${NAME}: the reference needs at least ${MIN_SYNC_SYMBOLS} symbols, it has ${nt}`);
+    throw new ReferenceMismatchError(`${NAME}: the reference needs at least ${MIN_SYNC_SYMBOLS} symbols, it has ${nt}`);
   const used = nr - o.skipSymbols;
   if (used < MIN_SYNC_SYMBOLS) {
     throw new RangeError(

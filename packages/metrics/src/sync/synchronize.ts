@@ -1,5 +1,6 @@
 import type { DualPol } from '@intradyne/core';
 import { type CompactReference, isCompactReference } from '../counting/compact-reference.js';
+import { ReferenceMismatchError } from '../counting/reference-mismatch.js';
 import { referenceSource } from './reference-source.js';
 import { synchronizeSource, validateSyncOptions } from './search.js';
 
@@ -159,6 +160,6 @@ export function synchronize(received: DualPol, reference: DualPol | CompactRefer
   const o = validateSyncOptions(options);
   const nt = isCompactReference(reference) ? reference.symbols : reference.x.length >> 1;
   const nty = isCompactReference(reference) ? reference.labels.y.length : reference.y.length >> 1;
-  if (nty !== nt) throw new RangeError(`synchronize: reference x has ${nt} symbols, y has ${nty}`);
+  if (nty !== nt) throw new ReferenceMismatchError(`synchronize: reference x has ${nt} symbols, y has ${nty}`);
   return synchronizeSource(received, referenceSource(reference), o).result;
 }

@@ -2,6 +2,7 @@ import { constellation, fromParts, labelsToSymbols, Rng } from '@intradyne/core'
 import { describe, expect, it } from 'vitest';
 import { countErrors, errorRatio } from '../../src/counting/error-count.js';
 import { referenceLabels } from '../../src/counting/reference-labels.js';
+import { ReferenceMismatchError } from '../../src/counting/reference-mismatch.js';
 
 describe('countErrors', () => {
   it('counts Hamming distances of labels and differing symbols', () => {
@@ -65,7 +66,9 @@ describe('referenceLabels', () => {
       Uint8Array.from({ length: 16 }, (_, i) => i),
     );
     expect(() => referenceLabels(constellation('qpsk'), sixteen)).toThrow(/not a qpsk point/);
-    expect(() => referenceLabels(c16, fromParts([], []))).toThrow(RangeError);
-    expect(() => referenceLabels(c16, fromParts([0, 0], [0, 0]))).toThrow(RangeError);
+    // Every way a reference cannot be measured against is one typed error, whatever its words.
+    expect(() => referenceLabels(c16, fromParts([], []))).toThrow(ReferenceMismatchError);
+    expect(() => referenceLabels(c16, fromParts([0, 0], [0, 0]))).toThrow(ReferenceMismatchError);
+    expect(() => referenceLabels(c64, noise)).toThrow(ReferenceMismatchError);
   });
 });

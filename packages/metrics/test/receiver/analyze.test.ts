@@ -1,5 +1,12 @@
 import { createHash } from 'node:crypto';
-import { type ChannelBlock, type SimulatedCapture, type SimulationOptions, simulate, sliceBlock } from '@intradyne/core';
+import {
+  type ChannelBlock,
+  type SimulatedCapture,
+  type SimulationOptions,
+  simulate,
+  sliceBlock,
+  sliceComplex,
+} from '@intradyne/core';
 import { describe, expect, it } from 'vitest';
 import { type AnalysisResult, analyzeCapture, snrForBer } from '../../src/index.js';
 
@@ -157,6 +164,17 @@ describe('default receiver: explicit failures and streaming', () => {
     expect(result.ok).toBe(false);
     expect(result.failure?.check).toBe('reference');
     expect(result.measurement).toBeNull();
+    // The right reference with one symbol moved off its point (0.3 of the level spacing 2/√10): the
+    // same check fails, naming the symbol.
+    const moved = { x: sliceComplex(cap.reference.x, 0, cap.reference.x.length >> 1), y: cap.reference.y };
+    moved.x[2 * 100] += 0.3 * (2 / Math.sqrt(10));
+    const notPoints = analyzeCapture(
+      [blockOf(cap)],
+      { modulation: '16qam', symbolRate: 32e9, sampleRate: 64e9, dispersionPsPerNm: 0 },
+      moved,
+    );
+    expect(notPoints.failure?.check).toBe('reference');
+    expect(notPoints.failure?.reason).toMatch(/reference symbol 100 .* is not a 16qam point/);
   });
 
   it('gives identical metrics for the capture in 1, 7 and 1,000 blocks, with a full reproducibility record', () => {
