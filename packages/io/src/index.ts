@@ -6,6 +6,7 @@
  */
 
 export { type AnalysisSettings, analyzeFile, type FileAnalysis } from './analysis/analyze-file.js';
+export { type PipelineSettings, readPipelineFile } from './analysis/pipeline-file.js';
 export {
   type ArrowCaptureOptions,
   arrowStreamComplete,
@@ -44,6 +45,7 @@ export {
   parseDescriptor,
   readDescriptor,
 } from './capture/descriptor.js';
+export { CAPTURE_FORMATS, type CaptureFormat, formatOfExtension, type ReadOptions } from './capture/formats.js';
 export { type PositionedJson, parseJsonWithPositions } from './capture/json-positions.js';
 export { LIMITS, maxDispersionPsPerNm } from './capture/limits.js';
 export {

@@ -1,22 +1,14 @@
 import { type Dirent, existsSync, readdirSync, realpathSync, statSync } from 'node:fs';
 import { basename, dirname, extname, join, resolve } from 'node:path';
-import { type ChannelBlock, constellation, type DualPol, type ModulationName } from '@intradyne/core';
+import type { ChannelBlock, DualPol, ModulationName } from '@intradyne/core';
 import type { CompactReference } from '@intradyne/metrics';
-import {
-  arrowStreamComplete,
-  loadReferenceArrow,
-  readArrowCapture,
-  readArrowCaptureAsync,
-  readArrowMetadata,
-} from '../arrow/arrow-capture.js';
 import { inputFailure } from '../errors/file-system.js';
 import { InputError, type InputLocation } from '../errors/input-error.js';
-import { type CsvCaptureOptions, readCsvCapture, readCsvCaptureAsync } from '../load/csv-capture.js';
 import { readInputText } from '../load/open-file.js';
-import { type CaptureDescriptor, DESCRIPTOR_FIELDS, type FieldValue, parseDescriptor, validateDescriptor } from './descriptor.js';
+import { type CaptureDescriptor, parseDescriptor, validateDescriptor } from './descriptor.js';
+import { CAPTURE_FORMATS, type CaptureFormat, extensionList, formatOfExtension, type ReadOptions } from './formats.js';
 import { parseJsonWithPositions, plainJson } from './json-positions.js';
 import { rateProblem } from './limits.js';
-import { checkReferenceConstellation, compactReferenceOf, loadReferenceCsv, loadReferenceLabelsCsv } from './reference.js';
 
 /**
  * The command-line option of each descriptor field that an option can
@@ -30,12 +22,10 @@ export const OVERRIDE_OPTIONS: Readonly<Record<string, string>> = {
   dispersionPsPerNm: '--dispersion',
 };
 
-/** Data file formats, by extension: `.csv`; `.arrow` (IPC file) and `.arrows` (IPC stream). */
-export const DATA_EXTENSIONS: Readonly<Record<string, 'csv' | 'arrow'>> = {
-  '.csv': 'csv',
-  '.arrow': 'arrow',
-  '.arrows': 'arrow',
-};
+/** Data file formats by extension (`.csv`; `.arrow`, IPC file, and `.arrows`, IPC stream), from {@link CAPTURE_FORMATS}. */
+export const DATA_EXTENSIONS: Readonly<Record<string, string>> = Object.fromEntries(
+  CAPTURE_FORMATS.flatMap((f) => f.extensions.map((e) => [e, f.name])),
+);
 
 /** A capture: its files, its validated descriptor, its reference, and readers of its samples. */
 export interface CaptureDescription {
@@ -43,8 +33,8 @@ export interface CaptureDescription {
   readonly name: string;
   /** Path of the data file. */
   readonly dataPath: string;
-  /** Its format, from the extension. */
-  readonly format: 'csv' | 'arrow';
+  /** Its format's name ('csv', 'arrow'), from the extension. */
+  readonly format: string;
   /** The sidecar, or undefined for an Arrow capture described by its schema metadata alone. */
   readonly descriptorPath: string | undefined;
   /** Descriptor fields after defaults and overrides; `sampleRate` always set. */
@@ -139,21 +129,6 @@ export function resolveDataPath(path: string): string {
   return path;
 }
 
-function metadataFields(meta: ReadonlyMap<string, string>): Map<string, FieldValue> {
-  const fields = new Map<string, FieldValue>();
-  for (const [k, text] of meta) {
-    if (!(DESCRIPTOR_FIELDS as readonly string[]).includes(k)) continue;
-    let value: unknown = text;
-    try {
-      value = JSON.parse(text);
-    } catch {
-      // A plain string value ("16qam").
-    }
-    fields.set(k, { value });
-  }
-  return fields;
-}
-
 /**
  * Opens a capture: finds its descriptor (`<name>.json` beside the data
  * file), loads and validates it (an Arrow capture may also carry descriptor
@@ -171,10 +146,10 @@ function metadataFields(meta: ReadonlyMap<string, string>): Map<string, FieldVal
  */
 export function openCapture(path: string, overrides: Readonly<Record<string, unknown>> = {}): CaptureDescription {
   const dataPath = resolveDataPath(path);
-  const format = DATA_EXTENSIONS[extname(dataPath).toLowerCase()];
+  const format = formatOfExtension(extname(dataPath)) as CaptureFormat;
   const sidecar = descriptorPathFor(dataPath);
   const hasSidecar = existsSync(sidecar);
-  const fields = format === 'arrow' ? metadataFields(readArrowMetadata(dataPath)) : new Map<string, FieldValue>();
+  const fields = format.descriptorFields(dataPath);
   const descriptorFile = hasSidecar ? sidecar : dataPath;
   if (hasSidecar) {
     const text = readInputText(sidecar, 'descriptor');
@@ -188,7 +163,7 @@ export function openCapture(path: string, overrides: Readonly<Record<string, unk
     throw new InputError(
       { file: dataPath },
       'descriptor',
-      `a descriptor ${sidecar} beside the data file${format === 'arrow' ? ' (or descriptor fields in the schema metadata)' : ''}`,
+      `a descriptor ${sidecar} beside the data file${format.name === 'arrow' ? ' (or descriptor fields in the schema metadata)' : ''}`,
       'none',
     );
   }
@@ -197,10 +172,7 @@ export function openCapture(path: string, overrides: Readonly<Record<string, unk
   const d = validateDescriptor(fields, descriptorFile);
   let sampleRate = d.sampleRate;
   if (sampleRate === undefined) {
-    if (format === 'csv') {
-      const first = readCsvCapture(dataPath, { columns: d.columns, blockSize: 1001 }).next();
-      sampleRate = first.done ? undefined : first.value.sampleRate;
-    }
+    sampleRate = format.sampleRateOf(dataPath, d.columns);
     if (sampleRate === undefined) {
       throw new InputError(
         { file: descriptorFile },
@@ -217,19 +189,14 @@ export function openCapture(path: string, overrides: Readonly<Record<string, unk
   const reference = loadReferenceLabels(referencePath, descriptorFile, d.modulation, d.reference);
   const samplesPerSymbol = sampleRate / d.symbolRate;
   const rate = sampleRate;
-  const csvOptions = (o?: { blockSize?: number }): CsvCaptureOptions => ({
+  const read = (o?: { blockSize?: number }): ReadOptions => ({
     columns: d.columns,
     sampleRate: rate,
     samplesPerSymbol,
     blockSize: o?.blockSize,
   });
-  const arrowColumns = d.columns ? Object.fromEntries(Object.entries(d.columns).filter(([k]) => k !== 't')) : undefined;
-  const arrowOptions = { columns: arrowColumns, sampleRate: rate, samplesPerSymbol };
-  const warnings: string[] = [];
-  if (format === 'arrow' && !arrowStreamComplete(dataPath))
-    warnings.push(
-      `${dataPath}: the Arrow IPC stream has no end-of-stream marker: it may have been cut short between two record batches (the analysis uses the batches present)`,
-    );
+  const warning = format.warning(dataPath);
+  const warnings: string[] = warning === null ? [] : [warning];
   const origin = (field: string): InputLocation | { readonly option: string } => {
     const f = fields.get(field);
     if (f?.option !== undefined) return { option: f.option };
@@ -238,7 +205,7 @@ export function openCapture(path: string, overrides: Readonly<Record<string, unk
   return {
     name: basename(dataPath, extname(dataPath)),
     dataPath,
-    format,
+    format: format.name,
     descriptorPath: hasSidecar ? sidecar : undefined,
     descriptor: { ...d, sampleRate },
     sampleRate,
@@ -251,9 +218,8 @@ export function openCapture(path: string, overrides: Readonly<Record<string, unk
     reference,
     warnings,
     origin,
-    blocks: (o) => (format === 'csv' ? readCsvCapture(dataPath, csvOptions(o)) : readArrowCapture(dataPath, arrowOptions)),
-    blocksAsync: (o) =>
-      format === 'csv' ? readCsvCaptureAsync(dataPath, csvOptions(o)) : readArrowCaptureAsync(dataPath, arrowOptions),
+    blocks: (o) => format.blocks(dataPath, read(o)),
+    blocksAsync: (o) => format.blocksAsync(dataPath, read(o)),
   };
 }
 
@@ -263,8 +229,7 @@ export function openCapture(path: string, overrides: Readonly<Record<string, unk
  * @example const ref = loadReference('tx-symbols.csv', 'lab/run-07.json'); // CSV or Arrow, checked
  */
 export function loadReference(path: string, descriptorFile: string, written = path): DualPol {
-  const ext = referenceExtension(path, descriptorFile, written);
-  return ext === '.csv' ? loadReferenceCsv(path) : loadReferenceArrow(path);
+  return referenceFormat(path, descriptorFile, written).reference(path);
 }
 
 /**
@@ -282,15 +247,11 @@ export function loadReferenceLabels(
   modulation: ModulationName,
   written = path,
 ): CompactReference {
-  const ext = referenceExtension(path, descriptorFile, written);
-  if (ext === '.csv') return loadReferenceLabelsCsv(path, modulation);
-  const symbols = loadReferenceArrow(path);
-  checkReferenceConstellation(symbols, constellation(modulation), path);
-  return compactReferenceOf(symbols, modulation, path);
+  return referenceFormat(path, descriptorFile, written).referenceLabels(path, modulation);
 }
 
-/** The reference file's extension, '.csv', '.arrow' or '.arrows', checked with the file's existence. */
-function referenceExtension(path: string, descriptorFile: string, written: string): string {
+/** The reference file's format, by its extension, checked with the file's existence. */
+function referenceFormat(path: string, descriptorFile: string, written: string): CaptureFormat {
   // A broken symbolic link does not exist either.
   if (!existsSync(path)) {
     throw new InputError(
@@ -300,9 +261,9 @@ function referenceExtension(path: string, descriptorFile: string, written: strin
       `${JSON.stringify(written)} (${path}: no such file)`,
     );
   }
-  const ext = extname(path).toLowerCase();
-  if (ext === '.csv' || ext === '.arrow' || ext === '.arrows') return ext;
-  throw new InputError({ file: descriptorFile }, "field 'reference'", 'a .csv, .arrow or .arrows file', JSON.stringify(written));
+  const format = formatOfExtension(extname(path));
+  if (format !== undefined) return format;
+  throw new InputError({ file: descriptorFile }, "field 'reference'", `a ${extensionList()} file`, JSON.stringify(written));
 }
 
 /**
@@ -347,7 +308,7 @@ export function listCaptures(dir: string): string[] {
       if (e.name.startsWith('.')) continue;
       const p = join(d, e.name);
       if (folder(p, e.isSymbolicLink(), e.isDirectory())) walk(p);
-      else if (extname(e.name).toLowerCase() in DATA_EXTENSIONS) {
+      else if (formatOfExtension(extname(e.name)) !== undefined) {
         if (names.has(`${basename(e.name, extname(e.name))}.json`)) found.push(p);
       }
     }
