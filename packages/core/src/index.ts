@@ -99,6 +99,7 @@ export {
 export * from './hash/sha256.js';
 export * from './modulation/constellation.js';
 export * from './modulation/moment-snr.js';
+export * from './modulation/shaping.js';
 export * from './physics/jones.js';
 export * from './physics/link.js';
 export * from './pipeline/block-checks.js';

@@ -14,6 +14,7 @@ export * from './counting/compact-reference.js';
 export * from './counting/error-count.js';
 export * from './counting/reference-labels.js';
 export * from './counting/reference-mismatch.js';
+export * from './counting/reference-prior.js';
 // Constellation density (the report's picture of the recovered symbols).
 export * from './density/constellation-density.js';
 // FEC thresholds.
@@ -32,5 +33,6 @@ export * from './receiver/analyze.js';
 export * from './sync/synchronize.js';
 // Theory (AWGN).
 export * from './theory/awgn-information.js';
+export * from './theory/decision-regions.js';
 export * from './theory/gauss-hermite.js';
 export * from './theory/qam-ber.js';

@@ -1,4 +1,4 @@
-import type { Constellation } from '../modulation/constellation.js';
+import { type Constellation, nearestLabel } from '../modulation/constellation.js';
 import type { ComplexArray } from '../signal/complex.js';
 import { type PairPhaseKernel, type PhaseKernel, runKernel } from './phase-kernel.js';
 import { QUARTER_TURN, unwrapPhase, wrapAngle } from './phase-unwrap.js';
@@ -45,7 +45,9 @@ export interface BlindPhaseSearchOptions {
  * free; the clamped decision they replace mispredicted its branches on the
  * outer levels (measured: the kernel runs about 2× faster). Distances are in
  * level units, a constant factor 1/scale² from unit power, which changes no
- * argmin.
+ * argmin. Constellations that are not square QAM (cross QAM, 8QAM) take the
+ * distance to their nearest point ({@link nearestLabel}) at unit power
+ * instead; their quarter-turn symmetry makes the same π/2 search range right.
  *
  * {@link pushPair} estimates one phase from both polarizations (the laser
  * phase is common to them): d_{i,b} is then the sum of the two symbols'
@@ -65,12 +67,14 @@ export class BlindPhaseSearchKernel implements PairPhaseKernel {
   private readonly inv: number;
   /** Fold offsets of the per-axis distance, largest first (see the class doc); 0 for an unused fold. */
   private readonly fold: Float64Array;
+  /** The constellation when it is not square QAM (distances to its nearest point), else null (the folds). */
+  private readonly other: Constellation | null;
   private slot = 0;
   private pushed = 0;
   private last = Number.NaN;
 
   /**
-   * @param c the constellation (square QAM at unit average power)
+   * @param c the constellation, at unit average power
    * @param options validated by the caller (the stage)
    */
   constructor(c: Constellation, options: BlindPhaseSearchOptions = {}) {
@@ -91,7 +95,8 @@ export class BlindPhaseSearchKernel implements PairPhaseKernel {
     this.ring = new Float64Array(this.len * this.b);
     this.sums = new Float64Array(this.b);
     this.inv = 1 / c.scale;
-    this.fold = foldOffsets(c.levelsPerAxis);
+    this.other = c.square ? null : c;
+    this.fold = foldOffsets(c.square ? c.levelsPerAxis : 2);
   }
 
   push(re: number, im: number, present: boolean): number {
@@ -101,15 +106,23 @@ export class BlindPhaseSearchKernel implements PairPhaseKernel {
     const cosB = this.cosB;
     const sinB = this.sinB;
     const inv = this.inv;
-    const h1 = this.fold[0];
-    const h2 = this.fold[1];
-    const h3 = this.fold[2];
+    const h0 = this.fold[0];
+    const h1 = this.fold[1];
+    const h2 = this.fold[2];
+    const h3 = this.fold[3];
     const b = this.b;
-    if (present) {
+    const other = this.other;
+    if (present && other !== null) {
+      for (let k = 0; k < b; k++) {
+        const d = pointDistance(other, re * cosB[k] - im * sinB[k], re * sinB[k] + im * cosB[k]);
+        sums[k] += d - ring[row + k];
+        ring[row + k] = d;
+      }
+    } else if (present) {
       for (let k = 0; k < b; k++) {
         // u = r·e^(−jφ_k) in level units (points at odd integers), folded per axis
-        const x = Math.abs(Math.abs(Math.abs(Math.abs((re * cosB[k] - im * sinB[k]) * inv) - h1) - h2) - h3);
-        const y = Math.abs(Math.abs(Math.abs(Math.abs((re * sinB[k] + im * cosB[k]) * inv) - h1) - h2) - h3);
+        const x = Math.abs(Math.abs(Math.abs(Math.abs(Math.abs((re * cosB[k] - im * sinB[k]) * inv) - h0) - h1) - h2) - h3);
+        const y = Math.abs(Math.abs(Math.abs(Math.abs(Math.abs((re * sinB[k] + im * cosB[k]) * inv) - h0) - h1) - h2) - h3);
         const d = x * x + y * y;
         // D_b ← D_b + d_new − d_oldest
         sums[k] += d - ring[row + k];
@@ -134,18 +147,28 @@ export class BlindPhaseSearchKernel implements PairPhaseKernel {
     const cosB = this.cosB;
     const sinB = this.sinB;
     const inv = this.inv;
-    const h1 = this.fold[0];
-    const h2 = this.fold[1];
-    const h3 = this.fold[2];
+    const h0 = this.fold[0];
+    const h1 = this.fold[1];
+    const h2 = this.fold[2];
+    const h3 = this.fold[3];
     const b = this.b;
-    if (present) {
+    const other = this.other;
+    if (present && other !== null) {
       for (let k = 0; k < b; k++) {
         const c = cosB[k];
         const s = sinB[k];
-        const ax = Math.abs(Math.abs(Math.abs(Math.abs((xr * c - xi * s) * inv) - h1) - h2) - h3);
-        const ay = Math.abs(Math.abs(Math.abs(Math.abs((xr * s + xi * c) * inv) - h1) - h2) - h3);
-        const bx = Math.abs(Math.abs(Math.abs(Math.abs((yr * c - yi * s) * inv) - h1) - h2) - h3);
-        const by = Math.abs(Math.abs(Math.abs(Math.abs((yr * s + yi * c) * inv) - h1) - h2) - h3);
+        const d = pointDistance(other, xr * c - xi * s, xr * s + xi * c) + pointDistance(other, yr * c - yi * s, yr * s + yi * c);
+        sums[k] += d - ring[row + k];
+        ring[row + k] = d;
+      }
+    } else if (present) {
+      for (let k = 0; k < b; k++) {
+        const c = cosB[k];
+        const s = sinB[k];
+        const ax = Math.abs(Math.abs(Math.abs(Math.abs(Math.abs((xr * c - xi * s) * inv) - h0) - h1) - h2) - h3);
+        const ay = Math.abs(Math.abs(Math.abs(Math.abs(Math.abs((xr * s + xi * c) * inv) - h0) - h1) - h2) - h3);
+        const bx = Math.abs(Math.abs(Math.abs(Math.abs(Math.abs((yr * c - yi * s) * inv) - h0) - h1) - h2) - h3);
+        const by = Math.abs(Math.abs(Math.abs(Math.abs(Math.abs((yr * s + yi * c) * inv) - h0) - h1) - h2) - h3);
         const d = ax * ax + ay * ay + bx * bx + by * by;
         sums[k] += d - ring[row + k];
         ring[row + k] = d;
@@ -230,8 +253,10 @@ export class CoarseFinePhaseKernel implements PhaseKernel {
   private readonly inv: number;
   private readonly top: number;
   private readonly n2: number;
+  private readonly c: Constellation;
 
   constructor(c: Constellation, options: BlindPhaseSearchOptions = {}) {
+    this.c = c;
     this.coarse = new BlindPhaseSearchKernel(c, options);
     this.n1 = this.coarse.delay;
     this.n2 = options.fineHalfWindow ?? this.n1;
@@ -266,8 +291,16 @@ export class CoarseFinePhaseKernel implements PhaseKernel {
       const ri = this.inIm[t];
       const cs = Math.cos(theta1);
       const sn = Math.sin(theta1);
-      const ar = slice(rr * cs + ri * sn, this.scale, this.inv, this.top);
-      const ai = slice(ri * cs - rr * sn, this.scale, this.inv, this.top);
+      let ar: number;
+      let ai: number;
+      if (this.c.square) {
+        ar = slice(rr * cs + ri * sn, this.scale, this.inv, this.top);
+        ai = slice(ri * cs - rr * sn, this.scale, this.inv, this.top);
+      } else {
+        const l = nearestLabel(this.c, rr * cs + ri * sn, ri * cs - rr * sn);
+        ar = this.c.points[2 * l];
+        ai = this.c.points[2 * l + 1];
+      }
       ur = rr * ar + ri * ai;
       ui = ri * ar - rr * ai;
     }
@@ -300,19 +333,27 @@ export class CoarseFinePhaseKernel implements PhaseKernel {
 }
 
 /**
- * Offsets [h1, h2, h3] of the folds x ← |x − h| that map |v| to its
+ * Offsets [h0, h1, h2, h3] of the folds x ← |x − h| that map |v| to its
  * distance from the nearest odd level for `levels` levels per axis: L/2,
- * L/4 … 1, preceded by zeros (a fold by 0 leaves x ≥ 0 unchanged). Up to 8
- * levels per axis (64QAM).
+ * L/4 … 1, preceded by zeros (a fold by 0 leaves x ≥ 0 unchanged, bit for
+ * bit). Up to 16 levels per axis (256QAM).
  */
 function foldOffsets(levels: number): Float64Array {
-  const fold = new Float64Array(3);
-  let i = 2;
+  const fold = new Float64Array(4);
+  let i = 3;
   for (let h = 1; h < levels; h *= 2) {
-    if (i < 0) throw new RangeError(`blind phase search: at most 8 levels per axis are supported, ${levels} given`);
+    if (i < 0) throw new RangeError(`blind phase search: at most 16 levels per axis are supported, ${levels} given`);
     fold[i--] = h;
   }
   return fold;
+}
+
+/** |u − a|² for the point a nearest to u = ur + j·ui (unit power). */
+function pointDistance(c: Constellation, ur: number, ui: number): number {
+  const k = nearestLabel(c, ur, ui);
+  const dr = ur - c.points[2 * k];
+  const di = ui - c.points[2 * k + 1];
+  return dr * dr + di * di;
 }
 
 /** Nearest level of one axis of square QAM: (2i − (L − 1))·scale, i = clamp(round((v/scale + L − 1)/2)). */

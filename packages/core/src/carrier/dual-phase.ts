@@ -1,4 +1,4 @@
-import { type Constellation, nearestLevel } from '../modulation/constellation.js';
+import { type Constellation, nearestLabel, nearestLevel } from '../modulation/constellation.js';
 import type { ComplexArray } from '../signal/complex.js';
 import type { PairPhaseKernel, PhaseKernel } from './phase-kernel.js';
 
@@ -88,12 +88,14 @@ export class JointPhaseTracker implements DualPhaseKernel {
   private readonly present: Uint8Array;
   private readonly scale: number;
   private readonly top: number;
+  /** The constellation when it is not square QAM (nearest point by {@link nearestLabel}), else null. */
+  private readonly other: Constellation | null;
   private pushed = 0;
   private delta: number;
 
   /**
    * @param kernel the estimator (its `pushPair` is used)
-   * @param c the constellation, for the loop's decisions (square QAM at unit average power)
+   * @param c the constellation, for the loop's decisions (at unit average power)
    * @param initialDelta Δ at the start, rad
    * @param loopGain μ of the relative-phase loop (0 holds Δ fixed)
    */
@@ -113,6 +115,7 @@ export class JointPhaseTracker implements DualPhaseKernel {
     this.present = new Uint8Array(this.len);
     this.scale = c.scale;
     this.top = c.levelsPerAxis - 1;
+    this.other = c.square ? null : c;
     this.delta = initialDelta;
   }
 
@@ -166,8 +169,10 @@ export class JointPhaseTracker implements DualPhaseKernel {
 
   /** Im(z·d*)/|d|² for the nearest point d of z = zr + j·zi. */
   private phaseError(zr: number, zi: number): number {
-    const dr = nearestLevel(zr, this.scale, this.top);
-    const di = nearestLevel(zi, this.scale, this.top);
+    const o = this.other;
+    const l = o === null ? 0 : nearestLabel(o, zr, zi);
+    const dr = o === null ? nearestLevel(zr, this.scale, this.top) : o.points[2 * l];
+    const di = o === null ? nearestLevel(zi, this.scale, this.top) : o.points[2 * l + 1];
     return (zi * dr - zr * di) / (dr * dr + di * di);
   }
 }

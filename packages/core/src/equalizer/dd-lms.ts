@@ -1,4 +1,10 @@
-import { type Constellation, constellation, type ModulationName, nearestLevel } from '../modulation/constellation.js';
+import {
+  type Constellation,
+  constellation,
+  type ModulationName,
+  nearestLabel,
+  nearestLevel,
+} from '../modulation/constellation.js';
 import type { UpdateRule } from './update-rule.js';
 
 /** Gains of the decision-directed carrier-phase loop of {@link ddLmsRule}. */
@@ -65,6 +71,10 @@ export class DdLmsRule implements UpdateRule {
   readonly name: string = 'dd-lms';
   private readonly levels: number;
   private readonly scale: number;
+  /** The constellation when it is not square QAM (nearest point by {@link nearestLabel}), else null. */
+  private readonly other: Constellation | null;
+  /** Sign of E[a⁴]: where Σz⁴ points relative to 4θ (−1 for square QAM). */
+  private readonly fourthSign: number;
   /** Proportional gain kp of the phase loop. */
   protected readonly kp: number;
   /** Integral gain ki of the phase loop. */
@@ -83,6 +93,8 @@ export class DdLmsRule implements UpdateRule {
   ) {
     this.levels = c.levelsPerAxis;
     this.scale = c.scale;
+    this.other = c.square ? null : c;
+    this.fourthSign = c.fourthPowerMean < 0 ? -1 : 1;
     this.kp = loop.proportional;
     this.ki = loop.integral;
   }
@@ -94,8 +106,10 @@ export class DdLmsRule implements UpdateRule {
     // z' = z·e^{−jθ}
     const zr = re * c + im * s;
     const zi = im * c - re * s;
-    const dr = this.slice(zr);
-    const di = this.slice(zi);
+    const o = this.other;
+    const l = o === null ? 0 : nearestLabel(o, zr, zi);
+    const dr = o === null ? this.slice(zr) : o.points[2 * l];
+    const di = o === null ? this.slice(zi) : o.points[2 * l + 1];
     const er = dr - zr;
     const ei = di - zi;
     // φ = Im(z'·d*) / |d|²
@@ -122,8 +136,9 @@ export class DdLmsRule implements UpdateRule {
   acquire(): void {
     for (let pol = 0; pol < 2; pol++) {
       const p = 2 * pol;
-      // Square QAM has E a⁴ < 0: arg(−Σz⁴)/4 is the phase, modulo π/2.
-      this.theta[pol] = Math.atan2(-this.s4[p + 1], -this.s4[p]) / 4;
+      // Square QAM has E a⁴ < 0: arg(−Σz⁴)/4 is the phase, modulo π/2 (8QAM's star, E a⁴ > 0: arg(Σz⁴)/4).
+      const sign = this.fourthSign;
+      this.theta[pol] = Math.atan2(sign * this.s4[p + 1], sign * this.s4[p]) / 4;
       this.nu[pol] = 0;
     }
   }
@@ -155,7 +170,7 @@ export class DdLmsRule implements UpdateRule {
     this.s4.fill(0);
   }
 
-  /** Nearest level on one axis of the square constellation. */
+  /** Nearest level on one axis of square QAM. */
   private slice(v: number): number {
     return nearestLevel(v, this.scale, this.levels - 1);
   }

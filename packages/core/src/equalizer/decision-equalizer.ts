@@ -3,6 +3,7 @@ import {
   checkModulation,
   constellation,
   type ModulationName,
+  nearestLabel,
   nearestLevel,
 } from '../modulation/constellation.js';
 import { checkBlock, checkRate } from '../pipeline/block-checks.js';
@@ -254,15 +255,30 @@ class DecisionEqualizer implements Stage<'symbols', 'symbols', DecisionEqualizer
     outY: Float64Array | null,
   ): void {
     const z = this.z;
-    const scale = this.c.scale;
-    const top = this.c.levelsPerAxis - 1;
+    const con = this.c;
+    const square = con.square;
+    const scale = con.scale;
+    const top = con.levelsPerAxis - 1;
     for (let k = 0; k < count; k++) {
       const newest = newest0 + k;
       butterflyOutput(this.taps, this.L, ux, uy, newest, z);
-      const exr = nearestLevel(z[0], scale, top) - z[0];
-      const exi = nearestLevel(z[1], scale, top) - z[1];
-      const eyr = nearestLevel(z[2], scale, top) - z[2];
-      const eyi = nearestLevel(z[3], scale, top) - z[3];
+      let exr: number;
+      let exi: number;
+      let eyr: number;
+      let eyi: number;
+      if (square) {
+        exr = nearestLevel(z[0], scale, top) - z[0];
+        exi = nearestLevel(z[1], scale, top) - z[1];
+        eyr = nearestLevel(z[2], scale, top) - z[2];
+        eyi = nearestLevel(z[3], scale, top) - z[3];
+      } else {
+        const lx = nearestLabel(con, z[0], z[1]);
+        const ly = nearestLabel(con, z[2], z[3]);
+        exr = con.points[2 * lx] - z[0];
+        exi = con.points[2 * lx + 1] - z[1];
+        eyr = con.points[2 * ly] - z[2];
+        eyi = con.points[2 * ly + 1] - z[3];
+      }
       updateRow(this.taps, this.L, ux, uy, newest, 0, exr, exi, this.mu);
       updateRow(this.taps, this.L, ux, uy, newest, 1, eyr, eyi, this.mu);
       if (outX !== null && outY !== null) {

@@ -27,7 +27,7 @@ import {
   normalizeChannels,
 } from '../frontend/normalize-channels.js';
 import { type OrthogonalizeIqDiagnostics, type OrthogonalizeIqOptions, orthogonalizeIq } from '../frontend/orthogonalize-iq.js';
-import { checkModulation, type ModulationName } from '../modulation/constellation.js';
+import { checkModulation, constellation, type ModulationName } from '../modulation/constellation.js';
 import type { BlockOf, Domain } from '../pipeline/blocks.js';
 import { pipe } from '../pipeline/pipe.js';
 import { type AnyStage, type JsonValue, OptionError, type Stage, type StageRecord } from '../pipeline/stage.js';
@@ -292,7 +292,7 @@ export function defaultReceiver<R extends ReplacedStages = NoReplacement>(
   // butterfly's own DD-LMS, whose decision-directed phase loop slips below
   // BER 1e-2 (measured: DP-64QAM at BER 2e-2 and DP-16QAM at 10 dB fail
   // with it); after the carrier recovery the decisions need no loop.
-  const refine = s.modulation !== 'qpsk' && o.decisionEqualizer !== false;
+  const refine = !isPsk(s.modulation) && o.decisionEqualizer !== false;
   const stages: ReceiverStages = {
     normalize: r.normalize ?? normalizeChannels(o.normalize),
     orthogonalize: r.orthogonalize ?? orthogonalizeIq({ method: s.orthogonalization, ...o.orthogonalize }),
@@ -375,11 +375,16 @@ function resolve(settings: ReceiverSettings<ReplacedStages>): ResolvedReceiverSe
     phaseRecovery: choose(
       'phaseRecovery',
       settings.phaseRecovery,
-      settings.modulation === 'qpsk' ? 'viterbi-viterbi' : 'blind-phase-search',
+      isPsk(settings.modulation) ? 'viterbi-viterbi' : 'blind-phase-search',
     ),
-    equalizerRule: choose('equalizerRule', settings.equalizerRule, settings.modulation === 'qpsk' ? 'cma' : 'rde'),
+    equalizerRule: choose('equalizerRule', settings.equalizerRule, isPsk(settings.modulation) ? 'cma' : 'rde'),
     orthogonalization: choose('orthogonalization', settings.orthogonalization, 'gsop'),
   };
+}
+
+/** True for a constellation of one ring (QPSK): Viterbi–Viterbi, CMA and no decision equalizer by default. */
+function isPsk(modulation: ModulationName): boolean {
+  return constellation(modulation).ringRadii2.length === 1;
 }
 
 /** An algorithm chosen by name among {@link ALGORITHMS}' (the default when none is). */

@@ -1,6 +1,6 @@
 import { fft, ifft } from '../dsp/fft.js';
 import { DEFAULT_ROLL_OFF, rootRaisedCosineSpectrum } from '../dsp/rrc.js';
-import { checkModulation, constellation, mapBits } from '../modulation/constellation.js';
+import { type Constellation, checkModulation, constellation, mapBits } from '../modulation/constellation.js';
 import { identityJones, type JonesMatrix, randomUnitary } from '../physics/jones.js';
 import { dispersionPhase, osnrToSnrDb } from '../physics/link.js';
 import { OptionError } from '../pipeline/stage.js';
@@ -91,6 +91,9 @@ export function simulate(options: SimulationOptions): SimulatedCapture {
     const g = new Prbs(o.source.order);
     g.fill(bitsX);
     g.fill(bitsY); // y continues the same sequence
+  } else if (c.shaped) {
+    shapedBits(c, rng, bitsX);
+    shapedBits(c, rng, bitsY);
   } else {
     rng.fillBits(bitsX);
     rng.fillBits(bitsY);
@@ -346,6 +349,8 @@ function validate(opt: SimulationOptions): Resolved {
   };
   if (!Number.isSafeInteger(opt.seed)) fail('seed', 'a safe integer', opt.seed);
   checkModulation(NAME, 'modulation', opt.modulation);
+  if (opt.source?.kind === 'prbs' && constellation(opt.modulation).shaped)
+    fail('source.kind', "'random' for a shaped modulation (a PRBS's bits are uniform)", 'prbs');
   if (!Number.isInteger(opt.symbols) || opt.symbols < 16) fail('symbols', 'an integer ≥ 16', opt.symbols);
   if (!(opt.symbolRate > 0) || !Number.isFinite(opt.symbolRate))
     fail('symbolRate', 'a positive symbol rate in Bd', opt.symbolRate);
@@ -437,4 +442,29 @@ function validate(opt: SimulationOptions): Resolved {
     adc,
     clockOffsetPpm,
   };
+}
+
+/**
+ * Bits of labels drawn independently from the constellation's prior (the
+ * symbols a distribution matcher would give, without its memory): label
+ * k is the first whose cumulative probability exceeds a uniform draw.
+ * @param out N·log2 M bits, filled MSB first per symbol
+ */
+function shapedBits(c: Constellation, rng: Rng, out: Uint8Array): void {
+  const m = c.bitsPerSymbol;
+  const cdf = new Float64Array(c.order);
+  let acc = 0;
+  for (let k = 0; k < c.order; k++) cdf[k] = acc += c.prior[k];
+  for (let s = 0; s < out.length / m; s++) {
+    const u = rng.uniform() * acc;
+    // Binary search: the least k with cdf[k] > u.
+    let lo = 0;
+    let hi = c.order - 1;
+    while (lo < hi) {
+      const mid = (lo + hi) >> 1;
+      if (cdf[mid] > u) hi = mid;
+      else lo = mid + 1;
+    }
+    for (let b = 0; b < m; b++) out[s * m + b] = (lo >> (m - 1 - b)) & 1;
+  }
 }

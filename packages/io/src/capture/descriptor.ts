@@ -1,4 +1,12 @@
-import { DEFAULT_ROLL_OFF, MODULATIONS, type ModulationName } from '@intradyne/core';
+import {
+  constellation,
+  DEFAULT_ROLL_OFF,
+  MODULATIONS,
+  type ModulationName,
+  parseModulation,
+  SHAPED_FAMILIES,
+  shapedModulation,
+} from '@intradyne/core';
 import { InputError, quoteText } from '../errors/input-error.js';
 import { UsageError } from '../errors/usage-error.js';
 import type { CaptureColumn } from '../load/csv-capture.js';
@@ -14,7 +22,14 @@ import { LIMITS, maxDispersionPsPerNm, rateProblem } from './limits.js';
  * - `sampleRate` (Sa/s): the scope rate; may be left out when the CSV has a
  *   time column, from which the loader infers it;
  * - `symbolRate` (Bd), required;
- * - `modulation`: `qpsk`, `16qam` or `64qam` (case-insensitive), required;
+ * - `modulation` (case-insensitive), required: `qpsk`, `8qam`, `16qam`,
+ *   `32qam`, `64qam`, `128qam`, `256qam`, or a shaped family `ps-64qam` or
+ *   `ps-256qam` with a `shaping` field; a shaped name with its parameter
+ *   (`ps-64qam:entropy=4.5`, as the analysis writes it) is accepted too;
+ * - `shaping`: `{ "entropy": H }` (bits per symbol) or `{ "nu": ν }` (the
+ *   Maxwell–Boltzmann parameter over the points at odd integers), with a
+ *   shaped family only; when `--modulation` overrides the modulation, the
+ *   option names the whole format and this field is ignored;
  * - `reference`: path of the transmitted symbols, relative to the
  *   descriptor's folder, required;
  * - `rollOff`: transmitter root-raised-cosine roll-off in (0, 1], default
@@ -62,6 +77,7 @@ export const DESCRIPTOR_FIELDS = [
   'sampleRate',
   'symbolRate',
   'modulation',
+  'shaping',
   'reference',
   'rollOff',
   'dispersionPsPerNm',
@@ -163,11 +179,7 @@ export function validateDescriptor(
   const symbolRate = positive('symbolRate', 'Bd', true) as number;
   if (sampleRate !== undefined && sampleRate > LIMITS.maxSampleRate) fail('sampleRate', `at most ${LIMITS.maxSampleRate} Sa/s`);
   if (symbolRate > LIMITS.maxSampleRate) fail('symbolRate', `at most ${LIMITS.maxSampleRate} Bd`);
-  const m = value('modulation');
-  const modulation =
-    typeof m === 'string' && (MODULATIONS as readonly string[]).includes(m.toLowerCase())
-      ? (m.toLowerCase() as ModulationName)
-      : fail('modulation', `one of ${MODULATIONS.map((x) => `"${x}"`).join(', ')}`);
+  const modulation = descriptorModulation(fields, fail);
   const r = value('reference');
   if (typeof r !== 'string' || r.trim() === '')
     fail('reference', 'the path of the reference symbols (relative to the descriptor)');
@@ -252,4 +264,48 @@ export function validateDescriptor(
     ...(columns ? { columns } : {}),
     ...(n !== undefined ? { notes: n as string } : {}),
   };
+}
+
+const MODULATION_EXPECTED = `one of ${[...MODULATIONS, ...SHAPED_FAMILIES].map((x) => `"${x}"`).join(', ')} (a shaped family with a "shaping" field), or a shaped name with its parameter such as "ps-64qam:entropy=4.5"`;
+
+/** The modulation of a descriptor's `modulation` and `shaping` fields, as its canonical name. */
+function descriptorModulation(
+  fields: ReadonlyMap<string, FieldValue>,
+  fail: (name: string, expected: string) => never,
+): ModulationName {
+  const m = fields.get('modulation')?.value;
+  const shaping = fields.get('shaping');
+  // An option names the whole format: the file's shaping goes with the file's modulation.
+  const fromOption = fields.get('modulation')?.option !== undefined;
+  if (typeof m !== 'string') return fail('modulation', MODULATION_EXPECTED);
+  const name = m.toLowerCase();
+  const family = (SHAPED_FAMILIES as readonly string[]).includes(name);
+  if (shaping !== undefined && !fromOption && !family)
+    fail('shaping', `no shaping for ${quoteText(m)} (only with ${SHAPED_FAMILIES.join(' or ')})`);
+  if (family) {
+    const sv = fromOption ? undefined : shaping?.value;
+    const keys = sv !== null && typeof sv === 'object' && !Array.isArray(sv) ? Object.keys(sv) : [];
+    if (keys.length !== 1 || (keys[0] !== 'entropy' && keys[0] !== 'nu'))
+      return fail(
+        fromOption ? 'modulation' : 'shaping',
+        fromOption
+          ? `a shaped name with its parameter, such as "${name}:entropy=4.5"`
+          : `{"entropy": H} (bits per symbol) or {"nu": ν} for ${name}`,
+      );
+    const v = (sv as Record<string, unknown>)[keys[0]];
+    try {
+      if (typeof v !== 'number') throw new RangeError('not a number');
+      return shapedModulation(name, keys[0] === 'entropy' ? { entropy: v } : { nu: v });
+    } catch (e) {
+      if (!(e instanceof RangeError)) throw e;
+      const c = constellation(name.slice(3) as ModulationName);
+      return fail('shaping', keys[0] === 'entropy' ? `an entropy above 2 and at most ${c.bitsPerSymbol} bits` : 'a finite ν ≥ 0');
+    }
+  }
+  try {
+    return parseModulation(name);
+  } catch (e) {
+    if (!(e instanceof RangeError)) throw e;
+    return fail('modulation', MODULATION_EXPECTED);
+  }
 }

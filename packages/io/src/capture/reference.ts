@@ -6,8 +6,9 @@ import {
   constellation,
   type DualPol,
   type ModulationName,
+  nearestLabel,
 } from '@intradyne/core';
-import { type CompactReference, compactReference, ReferenceLabeler } from '@intradyne/metrics';
+import { type CompactReference, compactReference, ReferenceLabeler, referencePriorProblem } from '@intradyne/metrics';
 import { InputError, withLinkTarget } from '../errors/input-error.js';
 import { BufferFeeder, type HeaderCell, listColumns, NumericCsvTable, type TableBlock } from '../load/csv-table.js';
 import { linkTarget, openInput, readInput } from '../load/open-file.js';
@@ -186,6 +187,8 @@ export function loadReferenceLabelsCsv(path: string, modulation: ModulationName)
     });
     first += b.rows;
   });
+  const prior = referencePriorProblem(c, [labels.x, labels.y]);
+  if (prior !== null) throw new InputError({ file: path }, 'reference', `symbols drawn with the ${c.name} prior`, prior);
   return { modulation, symbols: rows, labels };
 }
 
@@ -228,10 +231,14 @@ export function compactReferenceOf(symbols: DualPol, modulation: ModulationName,
     return compactReference(symbols, modulation);
   } catch (e) {
     if (!(e instanceof RangeError)) throw e;
+    // The one problem of a shaped reference whose points fit: its prior (referencePriorProblem's wording).
+    const prior = constellation(modulation).shaped && e.message.includes('mean energy');
     throw new InputError(
       { file },
       'reference',
-      `points of the ${modulation} constellation after the least-squares scaling (within a twentieth of a level spacing)`,
+      prior
+        ? `symbols drawn with the ${modulation} prior`
+        : `points of the ${modulation} constellation after the least-squares scaling (within a twentieth of a level spacing)`,
       e.message,
     );
   }
@@ -287,12 +294,18 @@ class ConstellationCheck {
     private readonly file: string,
     private readonly peaks: readonly number[],
   ) {
-    this.used = new Uint32Array(c.levelsPerAxis);
+    this.used = new Uint32Array(c.grid !== null ? c.levelsPerAxis : c.ringRadii2.length);
   }
 
   add(p: 0 | 1, z: ComplexArray, first: number): void {
     const { c } = this;
     if (this.bad[p] !== null || !(this.peaks[p] > 0)) return;
+    // A shaped reference may never use its outermost level: the least-squares labelling checks its points.
+    if (c.shaped) return;
+    if (c.grid === null) {
+      this.addPoints(p, z, first);
+      return;
+    }
     const l = c.levelsPerAxis;
     const spacing = 2 * c.scale;
     const g = ((l - 1) * c.scale) / this.peaks[p];
@@ -309,6 +322,41 @@ class ConstellationCheck {
         }
         used[i]++;
       }
+      // Cross QAM: the per-axis levels of a point must also meet at one of its points, not a corner.
+      if (!c.square) {
+        const cell = levelIndex(c, g * z[2 * k]) * l + levelIndex(c, g * z[2 * k + 1]);
+        if (c.grid.cells[cell] < 0) {
+          this.bad[p] =
+            `${first + k + 1}\u0000${z[2 * k]}${z[2 * k + 1] < 0 ? '' : '+'}${z[2 * k + 1]}j, in a corner the cross leaves empty`;
+          return;
+        }
+      }
+    }
+  }
+
+  /**
+   * Points off a lattice (8QAM): each polarization scaled so that its largest
+   * component sits on the largest coordinate of the points; every symbol must
+   * then lie within {@link REFERENCE_POINT_TOLERANCE} of the least distance
+   * of a point (per axis), and every ring must be used.
+   */
+  private addPoints(p: 0 | 1, z: ComplexArray, first: number): void {
+    const { c } = this;
+    let top = 0;
+    for (let i = 0; i < 2 * c.order; i++) top = Math.max(top, Math.abs(c.points[i]));
+    const g = top / this.peaks[p];
+    for (let k = 0; k < z.length >> 1; k++) {
+      const re = g * z[2 * k];
+      const im = g * z[2 * k + 1];
+      const label = nearestLabel(c, re, im);
+      const off = Math.max(Math.abs(re - c.points[2 * label]), Math.abs(im - c.points[2 * label + 1])) / c.minDistance;
+      if (!(off <= REFERENCE_POINT_TOLERANCE)) {
+        this.bad[p] =
+          `${first + k + 1}\u0000${z[2 * k]}${z[2 * k + 1] < 0 ? '' : '+'}${z[2 * k + 1]}j, ${off.toFixed(2)} of the least distance away`;
+        return;
+      }
+      const r2 = c.points[2 * label] ** 2 + c.points[2 * label + 1] ** 2;
+      this.used[c.ringRadii2.findIndex((x) => Math.abs(x - r2) < 1e-9)]++;
     }
   }
 
@@ -324,18 +372,23 @@ class ConstellationCheck {
         throw new InputError(
           { file },
           `reference symbol ${symbol}, polarization ${pol}`,
-          `a point of the ${c.name} constellation (after scaling, within ${REFERENCE_POINT_TOLERANCE} of a level spacing; is the modulation right?)`,
+          c.grid !== null
+            ? `a point of the ${c.name} constellation (after scaling, within ${REFERENCE_POINT_TOLERANCE} of a level spacing; is the modulation right?)`
+            : `a point of the ${c.name} constellation (after scaling, within ${REFERENCE_POINT_TOLERANCE} of the least distance; is the modulation right?)`,
           received,
         );
       }
     }
-    const l = c.levelsPerAxis;
+    if (c.shaped) return;
+    const l = this.used.length;
     const missing = [...this.used].filter((u) => u === 0).length;
     if (missing > 0) {
       throw new InputError(
         { file },
         'reference',
-        `symbols using all ${l} levels per axis of ${c.name} (is the modulation right?)`,
+        c.grid !== null
+          ? `symbols using all ${l} levels per axis of ${c.name} (is the modulation right?)`
+          : `symbols using all ${l} rings of ${c.name} (is the modulation right?)`,
         `symbols using ${l - missing} of them`,
       );
     }

@@ -1,5 +1,5 @@
 import { join } from 'node:path';
-import { ALGORITHMS, MODULATIONS } from '@intradyne/core';
+import { ALGORITHMS, MODULATIONS, parseModulation, SHAPED_FAMILIES } from '@intradyne/core';
 import { type AnalysisSettings, analyzeOpenCapture, type FileAnalysis } from '../analysis/analyze-file.js';
 import { readPipelineFile } from '../analysis/pipeline-file.js';
 import { stageSymbolsArrowStreaming } from '../arrow/arrow-write.js';
@@ -30,7 +30,9 @@ SNR, Q, GMI, NGMI, MI, per polarization and in total, with what every stage
 found (dispersion, clock, equalizer, frequency offset, slips).
 
 Options (each overrides the descriptor):
-  --modulation M        qpsk, 16qam or 64qam
+  --modulation M        qpsk, 8qam, 16qam, 32qam, 64qam, 128qam, 256qam, or a shaped
+                        format with its parameter: ps-64qam:entropy=4.5, ps-256qam:nu=0.01
+                        (ps-64qam alone takes the descriptor's shaping)
   --symbol-rate BD      symbol rate, Bd
   --sample-rate SAS     scope sample rate, Sa/s (at most 1e13, and 256 samples per symbol)
   --roll-off B          transmitter roll-off
@@ -65,10 +67,17 @@ Exit codes: 0 done, 1 the analysis failed (the reason is printed), 2 bad usage o
  */
 export function analysisSettingsFrom(command: string, values: Record<string, string | boolean | undefined>): AnalysisSettings {
   const modulation = values.modulation as string | undefined;
-  if (modulation !== undefined && !(MODULATIONS as readonly string[]).includes(modulation.toLowerCase()))
-    throw new UsageError(
-      `intradyne ${command}: --modulation expected one of ${MODULATIONS.join(', ')}, received '${modulation}'`,
-    );
+  // A shaped family alone ('ps-64qam') takes its parameter from the descriptor's shaping field.
+  if (modulation !== undefined && !(SHAPED_FAMILIES as readonly string[]).includes(modulation.toLowerCase())) {
+    try {
+      parseModulation(modulation);
+    } catch (e) {
+      if (!(e instanceof RangeError)) throw e;
+      throw new UsageError(
+        `intradyne ${command}: --modulation expected one of ${MODULATIONS.join(', ')}, or ${SHAPED_FAMILIES.join(' or ')} with ':entropy=H' or ':nu=ν' (as ps-64qam:entropy=4.5), received '${modulation}'`,
+      );
+    }
+  }
   const dispersion = values.dispersion as string | undefined;
   let dispersionPsPerNm: number | undefined;
   if (dispersion !== undefined) {

@@ -1,3 +1,4 @@
+import { constellation } from '@intradyne/core';
 import type { ErrorFigures, QualityFigures } from '@intradyne/metrics';
 import type { FileAnalysis } from '../analysis/analyze-file.js';
 
@@ -190,7 +191,8 @@ export const QUALITY_FIGURES: readonly Figure<QualityFigures>[] = [
     column: 'ngmi',
     kind: 'number',
     unit: '',
-    description: 'Normalized GMI, GMI over the bits per symbol',
+    description:
+      'Normalized GMI: GMI over the bits per symbol log2 M; for a shaped format 1 − (entropy − GMI)/log2 M (the same for a uniform one)',
     value: (f) => finite(f.ngmi),
   },
   {
@@ -305,12 +307,22 @@ export const ANALYSIS_FIGURES: readonly Figure<FileAnalysis>[] = [
     column: 'implementation_penalty_db',
     kind: 'number',
     unit: 'dB',
-    description: 'Measured SNR minus the SNR theory needs for the measured BER (Cho & Yoon 2002), dB; null without errors',
+    description:
+      'Measured SNR minus the SNR AWGN theory needs for the measured BER (Cho & Yoon 2002 for square QAM), dB, null without errors; for a shaped format, for the measured GMI',
     value: ({ result }) => finite(result.implementationPenaltyDb),
   },
   {
+    key: 'entropy',
+    column: 'entropy',
+    kind: 'number',
+    unit: 'bit',
+    description:
+      "Entropy of the transmitted symbols' prior, bits per symbol per polarization (log2 M for a uniform format; below it for a shaped one)",
+    value: ({ capture }) => constellation(capture.modulation).entropy,
+  },
+  {
     key: 'airBitsPerSecond',
-    column: null,
+    column: 'air_bit_per_s',
     kind: 'number',
     unit: 'bit/s',
     description: 'Achievable information rate, (GMIx + GMIy)·Rs, bit/s',

@@ -1,4 +1,4 @@
-import { MODULATIONS, type ModulationName } from '@intradyne/core';
+import { isModulationName } from '@intradyne/core';
 import type { SweepRow } from '../sweep/result-row.js';
 import { figure, plotRow, type ReportSection, reportPage } from './page.js';
 import { el, join, text } from './svg.js';
@@ -23,9 +23,9 @@ const num = (v: unknown): number => (typeof v === 'number' ? v : Number.NaN);
 
 /** A row's plot data, or null for a failed row or one without a finite SNR and BER. */
 export function sweepPoint(r: SweepRow): SweepPoint | null {
-  if (r.ok !== true || !MODULATIONS.includes(r.modulation as ModulationName)) return null;
+  if (r.ok !== true || !isModulationName(r.modulation)) return null;
   const p = {
-    modulation: r.modulation as ModulationName,
+    modulation: r.modulation,
     symbolRate: num(r.symbol_rate_bd),
     snrDb: num(r.snr_db),
     ber: num(r.ber),

@@ -1,7 +1,10 @@
 /**
  * The report's visual style, in one place: a warm paper background, ink-blue
- * text, four series colours that stay apart for colour-blind readers
- * (teal, amber, plum, slate), and a density ramp from paper to deep ink.
+ * text, eight series colours, the first four chosen to stay apart for
+ * colour-blind readers (teal, amber, plum, slate), then moss, rose, bronze
+ * and sky for sweeps of more formats (one per modulation present, in order
+ * of size; shaped formats after the uniform one of the same size), and a
+ * density ramp from paper to deep ink.
  * Only system font stacks: the page loads nothing.
  */
 export const THEME = {
@@ -14,7 +17,7 @@ export const THEME = {
   good: '#2f7d4f',
   bad: '#b23a2e',
   /** Series colours, in order of use. */
-  series: ['#147a78', '#c77614', '#7d3f7a', '#3f5f9d'] as const,
+  series: ['#147a78', '#c77614', '#7d3f7a', '#3f5f9d', '#5e8a2c', '#a8506f', '#8a6a1e', '#2f86b8'] as const,
   /** Reference curves (theory) and thresholds. */
   reference: '#1f2b3a',
   threshold: '#b23a2e',

@@ -1,5 +1,12 @@
 import { join } from 'node:path';
-import { LIBRARY_VERSION, OptionError, type SimulatedCapture, type SimulationOptions, simulate } from '@intradyne/core';
+import {
+  LIBRARY_VERSION,
+  type ModulationName,
+  OptionError,
+  type SimulatedCapture,
+  type SimulationOptions,
+  simulate,
+} from '@intradyne/core';
 import { LIMITS } from '../capture/limits.js';
 import { commitTogether, prepareOutputFolder } from '../write/atomic.js';
 import { stageCaptureCsv, stageJson, stageReferenceCsv } from '../write/csv.js';
@@ -97,7 +104,8 @@ export function runScenario(scenario: Scenario, outDir: string, options: RunScen
         {
           sampleRate: capture.channels.sampleRate,
           symbolRate: capture.symbolRate,
-          modulation: capture.modulation,
+          // A shaped format as its family and a shaping field (the form docs/capture-formats.md shows).
+          ...descriptorModulation(capture.modulation),
           reference: referenceName,
           rollOff: capture.rollOff,
           ...(scenario.statesDispersion === false ? {} : { dispersionPsPerNm: dispersion }),
@@ -129,4 +137,12 @@ export function runScenario(scenario: Scenario, outDir: string, options: RunScen
     options.onCapture?.(w, index, plans.length);
   });
   return written;
+}
+
+/** The descriptor's `modulation` (and `shaping`) fields of a modulation name. */
+function descriptorModulation(name: ModulationName): { modulation: string; shaping?: { entropy: number } | { nu: number } } {
+  const i = name.indexOf(':');
+  if (i < 0) return { modulation: name };
+  const [key, value] = name.slice(i + 1).split('=');
+  return { modulation: name.slice(0, i), shaping: key === 'entropy' ? { entropy: Number(value) } : { nu: Number(value) } };
 }

@@ -61,7 +61,10 @@ describe('descriptor', () => {
       [{ ...ok, symbolRate: -1 }, /field 'symbolRate': expected a positive number of Bd, received -1/],
       [{ ...ok, sampleRate: '80e9' }, /field 'sampleRate': expected a positive number of Sa\/s, received the string "80e9"/],
       [{ ...ok, sampleRate: 16e9 }, /field 'sampleRate': expected at least the symbol rate/],
-      [{ ...ok, modulation: '8psk' }, /field 'modulation': expected one of "qpsk", "16qam", "64qam", received the string "8psk"/],
+      [
+        { ...ok, modulation: '8psk' },
+        /field 'modulation': expected one of "qpsk", "8qam", "16qam", "32qam", "64qam", "128qam", "256qam", "ps-64qam", "ps-256qam" .*, received the string "8psk"/,
+      ],
       [{ ...ok, reference: '' }, /field 'reference': expected the path of the reference symbols/],
       [{ ...ok, reference: undefined }, /field 'reference'.*received nothing/],
       [{ ...ok, rollOff: 1.5 }, /field 'rollOff': expected a roll-off in \(0, 1\], received 1.5/],
@@ -77,5 +80,39 @@ describe('descriptor', () => {
     const e = fails('{\n  "symbolRate": 32e9,\n  "modulation": "qpsk",\n  "reference": "r.csv",\n  "rollOff": 3\n}');
     expect([e.line, e.column]).toEqual([5, 14]);
     expect(fails('{"symbolRate": 1e999, "modulation": "qpsk", "reference": "r.csv"}').message).toMatch(/received Infinity/);
+  });
+
+  it('reads the added formats, and a shaped one from its family and shaping field, as its canonical name', () => {
+    for (const m of ['8qam', '32QAM', '128qam', '256qam'])
+      expect(parseDescriptor(JSON.stringify({ ...ok, modulation: m }), 'run.json').modulation).toBe(m.toLowerCase());
+    const shaped = (shaping: unknown, modulation = 'PS-64QAM') =>
+      parseDescriptor(JSON.stringify({ ...ok, modulation, shaping }), 'run.json').modulation;
+    expect(shaped({ entropy: 4.5 })).toBe('ps-64qam:entropy=4.5');
+    expect(shaped({ nu: 0.01 }, 'ps-256qam')).toBe('ps-256qam:nu=0.01');
+    // The name the analysis writes is read back as it is.
+    expect(parseDescriptor(JSON.stringify({ ...ok, modulation: 'ps-64qam:entropy=4.50' }), 'run.json').modulation).toBe(
+      'ps-64qam:entropy=4.5',
+    );
+  });
+
+  it('names the shaping field and what it needs when the shaping is missing, out of range or given to a uniform format', () => {
+    const cases: [object, RegExp][] = [
+      [
+        { ...ok, modulation: 'ps-64qam' },
+        /field 'shaping': expected \{"entropy": H\} \(bits per symbol\) or \{"nu": ν\} for ps-64qam/,
+      ],
+      [
+        { ...ok, modulation: 'ps-64qam', shaping: { entropy: 6.5 } },
+        /field 'shaping': expected an entropy above 2 and at most 6 bits/,
+      ],
+      [{ ...ok, modulation: 'ps-64qam', shaping: { nu: -1 } }, /field 'shaping': expected a finite ν ≥ 0/],
+      [{ ...ok, modulation: 'ps-64qam', shaping: { entropy: 4, nu: 0.1 } }, /field 'shaping': expected \{"entropy": H\}/],
+      [{ ...ok, shaping: { entropy: 3 } }, /field 'shaping': expected no shaping for "16qam"/],
+      [{ ...ok, modulation: 'ps-16qam' }, /field 'modulation': expected one of "qpsk", "8qam", .*"ps-64qam", "ps-256qam"/],
+    ];
+    for (const [doc, message] of cases) {
+      const text = JSON.stringify(doc, null, 2);
+      expect(fails(text).message, text).toMatch(message);
+    }
   });
 });

@@ -1,9 +1,9 @@
 import { writeFileSync } from 'node:fs';
 import { join } from 'node:path';
-import { type ComplexArray, complexArray, Rng, simulate } from '@intradyne/core';
+import { type ComplexArray, complexArray, constellation, Rng, simulate } from '@intradyne/core';
 import { compactReference } from '@intradyne/metrics';
 import { describe, expect, it } from 'vitest';
-import { loadReferenceCsv, loadReferenceLabelsCsv } from '../../src/capture/reference.js';
+import { checkReferenceConstellation, loadReferenceCsv, loadReferenceLabelsCsv } from '../../src/capture/reference.js';
 import { InputError } from '../../src/errors/input-error.js';
 import { writeReferenceCsv } from '../../src/write/csv.js';
 import { caught, FIXTURES, tempDir } from '../support/temp.js';
@@ -60,6 +60,48 @@ describe('a reference loaded as labels', () => {
     writeFileSync(path, `x_re,x_im,y_re,y_im\n1,1,0,0\n${'1,-1,0,0\n'.repeat(40)}`);
     expect(message(() => loadReferenceLabelsCsv(path, 'qpsk'))).toMatch(
       /reference polarization y: expected qpsk symbols, received all zeros/,
+    );
+  });
+
+  it('reads references of the added formats, and names a point the constellation does not have', () => {
+    const dir = tempDir();
+    for (const modulation of ['8qam', '32qam', '128qam', '256qam', 'ps-64qam:entropy=4.5'] as const) {
+      const sim = simulate({ seed: 79, modulation, symbols: 4000, symbolRate: 32e9 });
+      const path = join(dir, `${modulation.replace(':', '-')}.csv`);
+      // At another scale, as a transmitter's file gives it.
+      const x = sim.reference.x.map((v) => 3 * v) as ComplexArray;
+      const y = sim.reference.y.map((v) => 3 * v) as ComplexArray;
+      writeReferenceCsv(path, { x, y });
+      const labels = loadReferenceLabelsCsv(path, modulation);
+      expect(labels).toEqual(compactReference(sim.reference, modulation));
+      expect(checkReferenceConstellation({ x, y }, constellation(modulation), path)).toBeUndefined();
+    }
+    // 32QAM: a symbol in a corner of the 6 × 6 grid, which the cross leaves empty.
+    const sim = simulate({ seed: 80, modulation: '32qam', symbols: 400, symbolRate: 32e9 });
+    const x = sim.reference.x.slice() as ComplexArray;
+    const corner = 5 * constellation('32qam').scale;
+    x[2 * 20] = corner;
+    x[2 * 20 + 1] = corner;
+    expect(message(() => checkReferenceConstellation({ x, y: sim.reference.y }, constellation('32qam'), 'tx.csv'))).toMatch(
+      /reference symbol 21, polarization x: expected a point of the 32qam constellation .*in a corner the cross leaves empty/,
+    );
+    // A shaped reference drawn with another prior (5.5 bits) on the points of the stated one (4.5 bits):
+    // scaled to the stated prior's unit power, its symbols fall between the points.
+    const stated = constellation('ps-64qam:entropy=4.5');
+    const drawn = simulate({ seed: 81, modulation: 'ps-64qam:entropy=5.5', symbols: 20000, symbolRate: 32e9 });
+    const labels = compactReference(drawn.reference, 'ps-64qam:entropy=5.5').labels;
+    const onStated = (l: Uint8Array) => {
+      const z = complexArray(l.length);
+      for (let k = 0; k < l.length; k++) {
+        z[2 * k] = stated.points[2 * l[k]];
+        z[2 * k + 1] = stated.points[2 * l[k] + 1];
+      }
+      return z;
+    };
+    const path = join(dir, 'wrong-entropy.csv');
+    writeReferenceCsv(path, { x: onStated(labels.x), y: onStated(labels.y) });
+    expect(message(() => loadReferenceLabelsCsv(path, stated.name))).toMatch(
+      /wrong-entropy.csv: reference symbol \d+, polarization x: expected a point of the ps-64qam:entropy=4.5 constellation/,
     );
   });
 });

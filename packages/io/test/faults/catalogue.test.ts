@@ -1047,7 +1047,8 @@ const CASES: Record<string, Case[]> = {
       name: 'an unknown --modulation is blamed on the option',
       setup: (w) => ['analyze', join(inputs(w), 'a.csv'), '--modulation', '8psk'],
       code: 2,
-      stderr: /^intradyne analyze: --modulation expected one of qpsk, 16qam, 64qam, received '8psk'$/m,
+      stderr:
+        /^intradyne analyze: --modulation expected one of qpsk, 8qam, 16qam, 32qam, 64qam, 128qam, 256qam, or ps-64qam or ps-256qam with ':entropy=H' or ':nu=ν' \(as ps-64qam:entropy=4.5\), received '8psk'$/m,
     },
     {
       name: 'a --sample-rate below the descriptor symbol rate is blamed on the option',

@@ -103,6 +103,8 @@ describe('the figure schema', () => {
       'freq_offset_hz',
       'cycle_slips',
       'implementation_penalty_db',
+      'entropy',
+      'air_bit_per_s',
       'x_ber',
       'x_ber_is_upper_bound',
       'x_snr_db',

@@ -1,6 +1,7 @@
 import { type ComplexArray, complexArray, constellation, type DualPol, type ModulationName } from '@intradyne/core';
 import { referenceLabels } from './reference-labels.js';
 import { ReferenceMismatchError } from './reference-mismatch.js';
+import { referencePriorProblem } from './reference-prior.js';
 
 /**
  * Transmitted reference symbols held as their constellation labels: 1 byte
@@ -28,7 +29,8 @@ export interface CompactReference {
 /**
  * A reference held as its labels (see {@link CompactReference}).
  * @param reference transmitted symbols, Nt per polarization, any scale
- * @throws RangeError when x and y differ in length, or as {@link referenceLabels}
+ * @throws ReferenceMismatchError when x and y differ in length, as {@link referenceLabels}, or for a shaped
+ *   modulation whose prior the labels do not fit ({@link referencePriorProblem})
  * @example const ref = compactReference(cap.reference, '16qam'); ref.labels.x[0];
  */
 export function compactReference(reference: DualPol, modulation: ModulationName): CompactReference {
@@ -36,7 +38,10 @@ export function compactReference(reference: DualPol, modulation: ModulationName)
   const symbols = reference.x.length >> 1;
   if (reference.y.length >> 1 !== symbols)
     throw new ReferenceMismatchError(`compactReference: reference x has ${symbols} symbols, y has ${reference.y.length >> 1}`);
-  return { modulation, symbols, labels: { x: referenceLabels(c, reference.x), y: referenceLabels(c, reference.y) } };
+  const labels = { x: referenceLabels(c, reference.x), y: referenceLabels(c, reference.y) };
+  const problem = referencePriorProblem(c, [labels.x, labels.y]);
+  if (problem !== null) throw new ReferenceMismatchError(`compactReference: ${problem}`);
+  return { modulation, symbols, labels };
 }
 
 /**

@@ -1,3 +1,5 @@
+import type { Constellation } from '@intradyne/core';
+
 /**
  * Achievable information rate of a dual-polarization channel, bit/s: the sum
  * of the per-polarization GMIs (bits per symbol) times the symbol rate,
@@ -18,4 +20,15 @@ export function airBitsPerSecond(gmiX: number, gmiY: number, symbolRate: number)
   }
   // A negative GMI estimate (possible when the fitted channel is badly mismatched) achieves nothing.
   return (Math.max(0, gmiX) + Math.max(0, gmiY)) * symbolRate;
+}
+
+/**
+ * NGMI: GMI / log2 M for a uniform format; for a shaped one (prior of
+ * entropy H) 1 − (H − GMI)/log2 M, the normalization that keeps the
+ * soft-decision FEC thresholds meaningful for probabilistic shaping
+ * (Alvarado et al., JLT 36(2), 2018; equal to GMI / log2 M when H = log2 M).
+ * @example normalizedGmi(constellation('ps-64qam:entropy=4.5'), 4.2) // 1 − 0.3/6 = 0.95
+ */
+export function normalizedGmi(c: Constellation, gmi: number): number {
+  return c.shaped ? 1 - (c.entropy - gmi) / c.bitsPerSymbol : gmi / c.bitsPerSymbol;
 }

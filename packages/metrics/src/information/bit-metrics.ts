@@ -49,11 +49,21 @@ export interface InformationEstimate {
  * ('exact', default) or by its max-log approximation ln Σ q ≈ max ln q
  * ('max-log', which gives less). The MI always uses exact sums.
  *
- * Evaluated per axis: q factorizes into in-phase and quadrature Gaussians,
- * and with the per-axis Gray labelling of square QAM every bit depends on
- * one axis only, so the other axis's sum cancels from each term (for the
+ * With a non-uniform prior P (a shaped format) the sums are weighted by it
+ * and m becomes the entropy H of the prior (Alvarado et al. 2018 for the
+ * GMI of non-uniform signalling; the bit-metric decoding rate of Böcherer
+ * et al. 2015):
+ *
+ *   GMI ≈ H − (1/N)·Σₖ Σᵢ log2( Σ_{x∈𝒳} P(x)·q(rₖ|x) / Σ_{x∈𝒳ᵢ^(bₖ,ᵢ)} P(x)·q(rₖ|x) ),
+ *   MI  ≈ H − (1/N)·Σₖ log2( Σ_{x∈𝒳} P(x)·q(rₖ|x) / (P(aₖ)·q(rₖ|aₖ)) ).
+ *
+ * Square QAM is evaluated per axis: q factorizes into in-phase and
+ * quadrature Gaussians (and the Maxwell–Boltzmann prior into per-axis
+ * priors), and with the per-axis Gray labelling every bit depends on one
+ * axis only, so the other axis's sum cancels from each term (for the
  * max-log metric too): the sums run over √M levels instead of M points,
- * with the same result.
+ * with the same result. Other constellations (cross QAM, 8QAM) sum over
+ * their M points.
  * @param received N symbols at the constellation's scale
  * @param sent N transmitted labels
  * @param noiseVariance σ² per complex symbol, > 0 (see {@link fittedNoiseVariance})
@@ -88,6 +98,8 @@ export class InformationAccumulator {
   private readonly ax: Axis;
   private readonly indexOfCode: Uint8Array;
   private readonly table: AxisTable | null;
+  /** The sums over the M points of a constellation that is not square QAM, else null. */
+  private readonly points: PointSums | null;
   private n = 0;
 
   /**
@@ -101,13 +113,14 @@ export class InformationAccumulator {
     if (metric !== 'exact' && metric !== 'max-log') {
       throw new RangeError(`informationEstimate: expected bit metric 'exact' or 'max-log', received '${String(metric)}'`);
     }
-    const L = c.levelsPerAxis;
+    const L = c.square ? c.levelsPerAxis : 0;
     this.c = c;
     this.ax = {
       L,
       bits: c.bitsPerSymbol / 2,
       levels: new Float64Array(L),
       codes: new Uint8Array(L),
+      logPrior: c.shaped && c.square ? axisLogPrior(c) : null,
       inv: 1 / noiseVariance,
       exact: metric === 'exact',
       logq: new Float64Array(L),
@@ -122,7 +135,8 @@ export class InformationAccumulator {
       this.ax.codes[j] = j ^ (j >> 1);
       this.indexOfCode[this.ax.codes[j]] = j;
     }
-    this.table = axisTable(this.ax, noiseVariance);
+    this.table = c.square ? axisTable(this.ax, noiseVariance) : null;
+    this.points = c.square ? null : pointSums(c, noiseVariance, metric === 'exact');
   }
 
   /**
@@ -141,7 +155,10 @@ export class InformationAccumulator {
     const half = ax.bits;
     const low = ax.L - 1;
     const t = this.table;
-    if (t === null) {
+    const ps = this.points;
+    if (ps !== null) {
+      for (let k = 0; k < n; k++) pointTerms(ps, received[2 * k], received[2 * k + 1], sent[k]);
+    } else if (t === null) {
       for (let k = 0; k < n; k++) {
         const label = sent[k];
         axisTerms(ax, received[2 * k], indexOfCode[label >> half]);
@@ -164,9 +181,100 @@ export class InformationAccumulator {
   estimate(): InformationEstimate {
     const n = this.n;
     if (n === 0) throw new RangeError('informationEstimate: expected at least one symbol');
-    const m = this.c.bitsPerSymbol;
-    return { gmi: m - this.ax.bitLoss / (n * Math.LN2), mi: m - this.ax.symbolLoss / (n * Math.LN2) };
+    // log2 M for a uniform prior (exactly as before priors were known), the prior's entropy otherwise.
+    const m = this.c.shaped ? this.c.entropy : this.c.bitsPerSymbol;
+    const loss = this.points ?? this.ax;
+    return { gmi: m - loss.bitLoss / (n * Math.LN2), mi: m - loss.symbolLoss / (n * Math.LN2) };
   }
+}
+
+/** ln P of each level of one axis of shaped square QAM: the marginal of the prior (which factorizes over the axes). */
+function axisLogPrior(c: Constellation): Float64Array {
+  const L = c.levelsPerAxis;
+  const p = new Float64Array(L);
+  const inv = 1 / c.scale;
+  for (let k = 0; k < c.order; k++) p[Math.round((c.points[2 * k] * inv + L - 1) / 2)] += c.prior[k];
+  for (let j = 0; j < L; j++) p[j] = Math.log(p[j]);
+  return p;
+}
+
+/** The state of the sums over the M points (constellations other than square QAM). */
+interface PointSums {
+  readonly c: Constellation;
+  readonly inv: number;
+  readonly exact: boolean;
+  /** ln P of each point. */
+  readonly logPrior: Float64Array;
+  /** Scratch: ln(P·q) per point, and e^(ln(P·q) − max). */
+  readonly logq: Float64Array;
+  readonly q: Float64Array;
+  bitLoss: number;
+  symbolLoss: number;
+}
+
+function pointSums(c: Constellation, noiseVariance: number, exact: boolean): PointSums {
+  const logPrior = new Float64Array(c.order);
+  for (let k = 0; k < c.order; k++) logPrior[k] = Math.log(c.prior[k]);
+  return {
+    c,
+    inv: 1 / noiseVariance,
+    exact,
+    logPrior,
+    logq: new Float64Array(c.order),
+    q: new Float64Array(c.order),
+    bitLoss: 0,
+    symbolLoss: 0,
+  };
+}
+
+// Adds one symbol's GMI and MI losses (nats) over the M points: r = re + j·im sent as label `sent`.
+function pointTerms(s: PointSums, re: number, im: number, sent: number): void {
+  const { c, logq, q } = s;
+  const M = c.order;
+  const p = c.points;
+  // ln(P(x)·q(r|x)) = ln P(x) − |r − x|²/σ² per point.
+  let max = Number.NEGATIVE_INFINITY;
+  for (let l = 0; l < M; l++) {
+    const dr = re - p[2 * l];
+    const di = im - p[2 * l + 1];
+    logq[l] = s.logPrior[l] - (dr * dr + di * di) * s.inv;
+    if (logq[l] > max) max = logq[l];
+  }
+  let all = 0;
+  for (let l = 0; l < M; l++) all += q[l] = Math.exp(logq[l] - max);
+  const logAll = Math.log(all);
+  s.symbolLoss += logAll - (logq[sent] - max);
+  const m = c.bitsPerSymbol;
+  for (let i = 0; i < m; i++) {
+    const mask = 1 << (m - 1 - i);
+    const own = sent & mask;
+    if (s.exact) {
+      let ownSum = 0;
+      for (let l = 0; l < M; l++) if ((l & mask) === own) ownSum += q[l];
+      if (ownSum > 1e-280) {
+        s.bitLoss += logAll - Math.log(ownSum);
+        continue;
+      }
+    }
+    // Max-log, or an own subset near underflow: ln Σ over each subset around its own maximum.
+    const lOwn = s.exact ? subsetLogSum(logq, M, mask, own) : subsetMax(logq, M, mask, own);
+    const lOther = s.exact ? subsetLogSum(logq, M, mask, own ^ mask) : subsetMax(logq, M, mask, own ^ mask);
+    const x = lOther - lOwn;
+    s.bitLoss += x > 0 ? x + Math.log1p(Math.exp(-x)) : Math.log1p(Math.exp(x));
+  }
+}
+
+function subsetMax(v: Float64Array, M: number, mask: number, want: number): number {
+  let max = Number.NEGATIVE_INFINITY;
+  for (let l = 0; l < M; l++) if ((l & mask) === want && v[l] > max) max = v[l];
+  return max;
+}
+
+function subsetLogSum(v: Float64Array, M: number, mask: number, want: number): number {
+  const own = subsetMax(v, M, mask, want);
+  let s = 0;
+  for (let l = 0; l < M; l++) if ((l & mask) === want) s += Math.exp(v[l] - own);
+  return own + Math.log(s);
 }
 
 interface Axis {
@@ -174,6 +282,8 @@ interface Axis {
   readonly bits: number;
   readonly levels: Float64Array;
   readonly codes: Uint8Array;
+  /** ln P of each level (shaped square QAM), or null for uniform levels (whose prior cancels). */
+  readonly logPrior: Float64Array | null;
   readonly inv: number;
   readonly exact: boolean;
   /** Scratch: ln q per level, and e^(ln q − max). */
@@ -258,9 +368,11 @@ function axisTerms(ax: Axis, v: number, sentLevel: number): void {
   const { L, logq, q } = ax;
   // ln q(v|s) = −(v − s)²/σ² per level (this axis's factor of the circular Gaussian).
   let max = Number.NEGATIVE_INFINITY;
+  const logPrior = ax.logPrior;
   for (let l = 0; l < L; l++) {
     const d = v - ax.levels[l];
-    logq[l] = -d * d * ax.inv;
+    // With a prior: ln(P·q) (the uniform prior cancels from every ratio and is left out).
+    logq[l] = logPrior === null ? -d * d * ax.inv : logPrior[l] - d * d * ax.inv;
     if (logq[l] > max) max = logq[l];
   }
   // One exponential per level, shared by every subset sum.

@@ -1,7 +1,7 @@
 import type { ComplexArray, Constellation, ModulationName } from '@intradyne/core';
 import type { Interval } from '../counting/clopper-pearson.js';
 import { type ErrorCount, errorRatio } from '../counting/error-count.js';
-import { airBitsPerSecond } from '../information/air.js';
+import { airBitsPerSecond, normalizedGmi } from '../information/air.js';
 import type { BitMetric } from '../information/bit-metrics.js';
 import { constellationPower, type EvmNormalization } from '../quality/evm.js';
 import { qFactorDb, toDb } from '../quality/snr.js';
@@ -248,7 +248,7 @@ export function figures(
     snrFromEvmDb: toDb(1 / (evmAverage * evmAverage)),
     qDb: ber.ratio < 0.5 ? qFactorDb(ber.ratio) : null,
     gmi,
-    ngmi: gmi / c.bitsPerSymbol,
+    ngmi: normalizedGmi(c, gmi),
     mi,
     uncorrected: errorFigures(both.uncorrected),
     blockCorrected: errorFigures(both.corrected),

@@ -1,4 +1,4 @@
-import { type ComplexArray, MODULATIONS, type ModulationName, OptionError } from '@intradyne/core';
+import { type ComplexArray, checkModulation, type ModulationName, OptionError } from '@intradyne/core';
 import type { BitMetric } from '../information/bit-metrics.js';
 import type { EvmNormalization } from '../quality/evm.js';
 import type { SyncOptions } from '../sync/synchronize.js';
@@ -46,8 +46,7 @@ export interface Validated extends SyncOptions {
 }
 
 export function validate(modulation: ModulationName, options: MeasureOptions): Validated {
-  if (!MODULATIONS.includes(modulation))
-    throw new OptionError(NAME, 'modulation', `one of ${MODULATIONS.join(', ')}`, modulation);
+  checkModulation(NAME, 'modulation', modulation);
   const evmNormalization = options.evmNormalization ?? 'average';
   if (evmNormalization !== 'average' && evmNormalization !== 'peak') {
     throw new OptionError(NAME, 'evmNormalization', "'average' or 'peak'", evmNormalization);

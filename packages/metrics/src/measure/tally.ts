@@ -50,7 +50,7 @@ export class PolarizationTally {
     o: Validated,
     slips: boolean,
   ) {
-    // A noiseless stream: the information is log2 M; the Gaussian fit needs σ² > 0.
+    // A noiseless stream: the information is the entropy (log2 M for a uniform format); the Gaussian fit needs σ² > 0.
     this.info = fit.noiseVariance > 0 ? new InformationAccumulator(c, fit.noiseVariance, o.bitMetric) : null;
     this.slipDetector = slips ? new ReferenceSlipDetector() : null;
     this.block = o.slipBlockSymbols;
@@ -112,7 +112,7 @@ export class PolarizationTally {
   }
 
   figures(evmNormalization: EvmNormalization): QualityFigures {
-    const info = this.info ? this.info.estimate() : { gmi: this.c.bitsPerSymbol, mi: this.c.bitsPerSymbol };
+    const info = this.info ? this.info.estimate() : { gmi: this.c.entropy, mi: this.c.entropy };
     const e = this.errorEnergyAtOwnGain();
     return figures(
       this.c,

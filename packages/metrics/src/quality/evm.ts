@@ -53,16 +53,19 @@ export function errorPower(received: ComplexArray, reference: ComplexArray): num
 }
 
 /**
- * Average (mean |a|² over the points: 1) or peak (max |a|²) power of a constellation.
+ * Average (mean |a|² under the prior: 1) or peak (max |a|²) power of a constellation.
  * @example constellationPower(constellation('16qam'), 'peak') // 1.8
  */
 export function constellationPower(c: Constellation, normalization: EvmNormalization): number {
   let sum = 0;
+  let weighted = 0;
   let peak = 0;
   for (let k = 0; k < c.order; k++) {
     const p = c.points[2 * k] ** 2 + c.points[2 * k + 1] ** 2;
     sum += p;
+    weighted += c.prior[k] * p;
     if (p > peak) peak = p;
   }
-  return normalization === 'peak' ? peak : sum / c.order;
+  // The average under the prior (1 by construction); a uniform prior keeps the plain mean.
+  return normalization === 'peak' ? peak : c.shaped ? weighted : sum / c.order;
 }

@@ -11,6 +11,7 @@ import {
   type FieldBlock,
   type InputHasher,
   LIBRARY_VERSION,
+  type ModulationName,
   type NoReplacement,
   OptionError,
   type ReceiverDiagnostics,
@@ -25,6 +26,7 @@ import { type CompactReference, isCompactReference, referencePoints } from '../c
 import { ReferenceMismatchError } from '../counting/reference-mismatch.js';
 import { ConstellationDensity, type ConstellationHistogram } from '../density/constellation-density.js';
 import { DEFAULT_FIT_SYMBOLS, type Measurement, MeasurementStream, ReferenceNotFoundError } from '../measure/measure.js';
+import { snrForGmi } from '../theory/awgn-information.js';
 import { snrForBer, theoryBer } from '../theory/qam-ber.js';
 
 /** Options of {@link analyzeCapture}. */
@@ -413,7 +415,13 @@ function analyzeOnce<R extends ReplacedStages>(
     return failed({ check: 'modulation', reason: `the recovered symbols do not fit ${settings.modulation}: ${reason}` }, fit);
   }
   const slips = (stream as MeasurementStream).slips();
-  const theory = m.bitErrors > 0 && m.ber < 0.5 ? snrForBer(settings.modulation, m.ber) : null;
+  // A shaped format is judged by its GMI (its BER says little of what a bit-metric decoder achieves).
+  const shaped = constellation(settings.modulation).shaped;
+  const theory = shaped
+    ? snrForGmiOrNull(settings.modulation, m.gmi)
+    : m.bitErrors > 0 && m.ber < 0.5
+      ? snrForBer(settings.modulation, m.ber)
+      : null;
   return {
     ok: true,
     equalizerTraining,
@@ -563,5 +571,15 @@ class HoldBack {
     const released = this.held.copy(0, out);
     this.held.dropFront(out);
     return released;
+  }
+}
+
+/** The SNR AWGN theory needs for a GMI, or null for a GMI it does not reach between −60 and 60 dB. */
+function snrForGmiOrNull(modulation: ModulationName, gmi: number): number | null {
+  try {
+    return snrForGmi(modulation, gmi);
+  } catch (e) {
+    if (e instanceof RangeError) return null;
+    throw e;
   }
 }

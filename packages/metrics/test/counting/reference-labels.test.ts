@@ -1,7 +1,8 @@
-import { type ComplexArray, constellation, type DualPol, Rng } from '@intradyne/core';
+import { type ComplexArray, complexArray, constellation, type DualPol, Rng, simulate } from '@intradyne/core';
 import { describe, expect, it } from 'vitest';
 import { compactReference, isCompactReference, referencePoints } from '../../src/counting/compact-reference.js';
 import { referenceLabels, referenceLabelsInChunks } from '../../src/counting/reference-labels.js';
+import { ReferenceMismatchError } from '../../src/counting/reference-mismatch.js';
 import { randomSymbols } from '../support/streams.js';
 
 /** Cuts a reference into chunks of random sizes (1 … 5,000 symbols), given as often as asked. */
@@ -68,5 +69,37 @@ describe('reference labels', () => {
     expect(isCompactReference(ref)).toBe(true);
     expect(isCompactReference(symbols)).toBe(false);
     expect(() => compactReference({ x: symbols.x, y: symbols.y.subarray(2) as ComplexArray }, '64qam')).toThrow(RangeError);
+  });
+});
+
+describe('a shaped reference checked against its prior', () => {
+  it('passes references drawn with the stated prior and refuses one drawn with another', () => {
+    const stated = constellation('ps-64qam:entropy=4.5');
+    // Genuine references of a few seeds: the mean energy is within six standard errors of 1.
+    for (const seed of [91, 92, 93]) {
+      const sim = simulate({ seed, modulation: stated.name, symbols: 20000, symbolRate: 32e9 });
+      expect(compactReference(sim.reference, stated.name).symbols).toBe(20000);
+    }
+    // Labels drawn with 5.5 bits of entropy, placed on the 4.5-bit points: scaled to the stated
+    // prior's unit power (mean energy about 1.4 before), they fall between its points.
+    const drawn = simulate({ seed: 94, modulation: 'ps-64qam:entropy=5.5', symbols: 20000, symbolRate: 32e9 });
+    const labels = compactReference(drawn.reference, 'ps-64qam:entropy=5.5').labels;
+    const onStated = (l: Uint8Array) => {
+      const z = complexArray(l.length);
+      for (let k = 0; k < l.length; k++) {
+        z[2 * k] = stated.points[2 * l[k]];
+        z[2 * k + 1] = stated.points[2 * l[k] + 1];
+      }
+      return z;
+    };
+    const e = (() => {
+      try {
+        compactReference({ x: onStated(labels.x), y: onStated(labels.y) }, stated.name);
+      } catch (error) {
+        return error;
+      }
+    })();
+    expect(e).toBeInstanceOf(ReferenceMismatchError);
+    expect((e as Error).message).toMatch(/is not a ps-64qam:entropy=4\.5 point|mean energy/);
   });
 });

@@ -5,7 +5,7 @@ import { FULL_PERIOD_SYMBOLS, MAX_TIED_DELAYS, SEGMENT_SYMBOLS, synchronize } fr
 import { type Impairment, impairedStream, randomSymbols } from '../support/streams.js';
 
 // SNRs near each format's BER 1e-2 (Cho & Yoon): the hard end of what a receiver hands over.
-const SNR_DB: Record<ModulationName, number> = { qpsk: 7.5, '16qam': 14, '64qam': 20 };
+const SNR_DB: Record<'qpsk' | '16qam' | '64qam', number> = { qpsk: 7.5, '16qam': 14, '64qam': 20 };
 
 /** A reference whose polarizations repeat `pattern` symbols of random data, cut at nt. */
 function repeating(modulation: ModulationName, pattern: number, nt: number, rng: Rng): DualPol {

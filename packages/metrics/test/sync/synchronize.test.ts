@@ -3,9 +3,9 @@ import { describe, expect, it } from 'vitest';
 import { MIN_SYNC_SYMBOLS, synchronize } from '../../src/sync/synchronize.js';
 import { type Impairment, impairedStream, randomSymbols } from '../support/streams.js';
 
-const MODULATIONS: readonly ModulationName[] = ['qpsk', '16qam', '64qam'];
+const MODULATIONS = ['qpsk', '16qam', '64qam'] as const;
 // SNRs near each format's BER 1e-2 (Cho & Yoon): the hard end of what a receiver hands over.
-const SNR_DB: Record<ModulationName, number> = { qpsk: 7.5, '16qam': 14, '64qam': 20 };
+const SNR_DB: Record<'qpsk' | '16qam' | '64qam', number> = { qpsk: 7.5, '16qam': 14, '64qam': 20 };
 
 function reference(modulation: ModulationName, nt: number, rng: Rng, scale: number): DualPol {
   const x = randomSymbols(modulation, nt, rng).symbols;

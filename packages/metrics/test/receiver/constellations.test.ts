@@ -1,0 +1,60 @@
+import { type ModulationName, simulate } from '@intradyne/core';
+import { describe, expect, it } from 'vitest';
+import { analyzeCapture, snrForBer } from '../../src/index.js';
+
+// The default receiver on the formats beyond QPSK, 16QAM and 64QAM, at the
+// Es/N0 where AWGN theory gives BER 1e-3 for each (exact integrals over the
+// decision regions, checked against Proakis's closed forms and a Monte Carlo
+// count in the theory tests): 32 GBd, 2 samples per symbol, a random
+// polarization state, 10 ps DGD, a 1.5 GHz carrier offset and 100 kHz lasers.
+// The penalty is the Es/N0 set minus the Es/N0 theory needs for the measured
+// BER. 2^17 symbols per polarization give 800 (8QAM) to 2,000 (256QAM) bit
+// errors at BER 1e-3: a relative standard deviation of 2–4 % of the BER,
+// about ±0.02 dB of penalty. Seeds not used while the defaults were chosen.
+const SYMBOLS = 2 ** 17;
+
+function penaltyDb(modulation: ModulationName, seed: number, linewidthHz: number): number {
+  const es = snrForBer(modulation, 1e-3);
+  const cap = simulate({
+    seed,
+    modulation,
+    symbols: SYMBOLS,
+    symbolRate: 32e9,
+    samplesPerSymbol: 2,
+    channel: { sop: 'random', dgdPs: 10, esN0Db: es, linewidthHz, freqOffsetHz: 1.5e9 },
+  });
+  const result = analyzeCapture(
+    [{ domain: 'channels', ...cap.channels, samplesPerSymbol: cap.samplesPerSymbol }],
+    { modulation, symbolRate: 32e9, sampleRate: cap.channels.sampleRate, dispersionPsPerNm: 0 },
+    cap.reference,
+  );
+  expect(result.ok, result.failure?.reason).toBe(true);
+  const m = result.measurement!;
+  expect(result.cycleSlips.count).toBe(0);
+  const penalty = es - snrForBer(modulation, m.ber);
+  if (process.env.INTRADYNE_REPORT) console.log(`${modulation}: BER ${m.ber.toExponential(3)}, penalty ${penalty.toFixed(3)} dB`);
+  return penalty;
+}
+
+describe('default receiver on the added formats, against AWGN theory', () => {
+  it('DP-8QAM at 100 kHz: penalty ≤ 0.5 dB', () => {
+    expect(penaltyDb('8qam', 301, 100e3)).toBeLessThan(0.5); // measured 0.15 dB (0.04 on another seed)
+  });
+
+  it('DP-32QAM at 100 kHz: penalty ≤ 0.5 dB', () => {
+    expect(penaltyDb('32qam', 302, 100e3)).toBeLessThan(0.5); // measured 0.26 dB (0.31 on another seed)
+  });
+
+  // 128QAM and 256QAM do not reach 0.5 dB yet: their penalties vary from capture to capture
+  // (128QAM 0.55–0.89 dB, 256QAM at 100 kHz 1.6–2.2 dB over the seeds tried), the blind phase
+  // search's phase error at Δν·T ≈ 3e-6 and the blind equalizer's start being the limits. These
+  // bounds guard the present state, not a goal.
+  it('DP-128QAM at 100 kHz: analysed without slips, penalty below 1.5 dB', () => {
+    expect(penaltyDb('128qam', 303, 100e3)).toBeLessThan(1.5);
+  });
+
+  it('DP-256QAM: analysed without slips, penalty below 1.0 dB without phase noise and 3.0 dB at 100 kHz', () => {
+    expect(penaltyDb('256qam', 304, 0)).toBeLessThan(1.0);
+    expect(penaltyDb('256qam', 305, 100e3)).toBeLessThan(3.0);
+  });
+});
