@@ -106,11 +106,11 @@ const cache = new Map<string, Constellation>();
  * - Cross QAM (32, 128): the Gray rectangle of 2^⌈m/2⌉ × 2^⌊m/2⌋ levels
  *   (in-phase bits first) with its outer columns folded onto the rows
  *   above and below: a point at (±I, Q) with |I| beyond the cross moves to
- *   (±|Q|, sign(Q)·(2(Lc + 1) − |I|)), Lc the cross's outermost level, which
+ *   (±|Q|, sign(Q)·(2(Lc + 1) − |I|)) (128QAM: see `fold128`), Lc the cross's outermost level, which
  *   fills the 6 × 6 (or 12 × 12) grid without its corners (the folding construction of Smith, "Odd-bit quadrature
  *   amplitude-shift keying", IEEE Trans. Commun. 23(3), 1975 — *from
- *   memory*; quasi-Gray: the neighbours across the fold differ in two bits,
- *   eight pairs of 128QAM in four).
+ *   memory*; quasi-Gray: the neighbours across the fold differ in two bits;
+ *   128QAM's outer blocks are placed so that this holds, see `fold128`).
  * - 8QAM: the star of four points at radius √2 (45°, 135°, 225°, 315°) and
  *   four at 1 + √3 on the axes, every neighbour at the same distance (the
  *   best 8-point signal set of the 8-point constellations compared in
@@ -325,14 +325,29 @@ function crossGrid(order: number): Float64Array {
     let i = 2 * grayToIndex(label >> bitsQ) - (li - 1);
     let q = 2 * grayToIndex(label & (lq - 1)) - (lq - 1);
     if (Math.abs(i) > edge) {
-      const folded = Math.sign(q) * (2 * (edge + 1) - Math.abs(i));
-      i = Math.sign(i) * Math.abs(q);
-      q = folded;
+      const [column, row] = order === 128 ? fold128(Math.abs(i), Math.abs(q)) : [Math.abs(q), 2 * (edge + 1) - Math.abs(i)];
+      i = Math.sign(i) * column;
+      q = Math.sign(q) * row;
     }
     g[2 * label] = i;
     g[2 * label + 1] = q;
   }
   return g;
+}
+
+/**
+ * Where 128QAM's fold puts an outer point (|I| 13 or 15, |Q| 1 … 7 of the
+ * 16 × 8 rectangle): columns 3 and 1 for |Q| 1 and 3, 5 and 7 for |Q| 5 and
+ * 7; row 9 for |Q| 1 and 7, 11 for |Q| 3 and 5. Folded as 32QAM's are
+ * (column |Q|, row 24 − |I|), eight neighbour pairs across the seam would
+ * differ in four bits; so placed, every neighbour pair differs in at most
+ * two, the sixteen across the seam in two (1.069 bits per neighbour pair
+ * on average instead of 1.138, counted in the tests).
+ */
+function fold128(i: number, q: number): [number, number] {
+  const column = q <= 3 ? 16 - i : i - 8;
+  const row = q === 1 || q === 7 ? 9 : 11;
+  return [column, row];
 }
 
 /** The 8-point star (see {@link constellation}): the ring in the first bit, the Gray quadrant in the other two. */

@@ -193,21 +193,23 @@ describe('cross QAM (32, 128): the cross grid and its quasi-Gray labels', () => 
     });
   }
 
-  it('32qam: every nearest-neighbour pair differs in at most 2 bits, the 2-bit pairs are the 8 seam pairs (quasi-Gray, Smith 1975 — from memory)', () => {
-    const c = constellation('32qam');
-    const pairs = neighbourPairs(c);
-    let two = 0;
-    let bits = 0;
-    for (const [a, b] of pairs) {
-      const h = hamming(a ^ b);
-      expect(h).toBeLessThanOrEqual(2);
-      if (h === 2) two++;
-      bits += h;
-    }
-    expect(two).toBe(8);
-    // Average bits per nearest-neighbour error: 1 + 8/52 (the seam's extra bit over the 52 pairs).
-    expect(Math.abs(bits / pairs.length - (1 + 8 / 52))).toBeLessThan(1e-15);
-  });
+  for (const name of ['32qam', '128qam'] as const)
+    it(`${name}: every nearest-neighbour pair differs in at most 2 bits, the 2-bit pairs are the √(2M) seam pairs (quasi-Gray, Smith 1975 — from memory)`, () => {
+      const c = constellation(name);
+      const pairs = neighbourPairs(c);
+      const seam = Math.sqrt(2 * c.order);
+      let two = 0;
+      let bits = 0;
+      for (const [a, b] of pairs) {
+        const h = hamming(a ^ b);
+        expect(h).toBeLessThanOrEqual(2);
+        if (h === 2) two++;
+        bits += h;
+      }
+      expect(two).toBe(seam);
+      // Average bits per nearest-neighbour error: 1 + 8/52 (32QAM), 1 + 16/232 (128QAM): the seam's extra bit.
+      expect(Math.abs(bits / pairs.length - (1 + seam / pairs.length))).toBeLessThan(1e-15);
+    });
 });
 
 describe('8QAM: the star of two rings', () => {

@@ -45,14 +45,14 @@ describe('default receiver on the added formats, against AWGN theory', () => {
     expect(penaltyDb('32qam', 302, 100e3)).toBeLessThan(0.5); // measured 0.26 dB (0.31 on another seed)
   });
 
-  // 128QAM and 256QAM do not reach 0.5 dB yet: their penalties vary from capture to capture
-  // (128QAM 0.55–0.89 dB, 256QAM at 100 kHz 1.6–2.2 dB over the seeds tried), the blind phase
-  // search's phase error at Δν·T ≈ 3e-6 and the blind equalizer's start being the limits. These
-  // bounds guard the present state, not a goal.
-  it('DP-128QAM at 100 kHz: analysed without slips, penalty below 1.5 dB', () => {
-    expect(penaltyDb('128qam', 303, 100e3)).toBeLessThan(1.5);
+  it('DP-128QAM at 100 kHz: penalty ≤ 0.8 dB', () => {
+    // Measured 0.52–0.67 dB over six seeds (this one 0.52 dB). The issue sets no floor for 128QAM.
+    expect(penaltyDb('128qam', 303, 100e3)).toBeLessThan(0.8);
   });
 
+  // 256QAM does not reach 0.5 dB yet: 1.6–2.2 dB at 100 kHz over the seeds tried, 0.67–0.76 dB
+  // without phase noise; the blind phase search's phase error at Δν·T ≈ 3e-6 is most of it. These
+  // bounds guard the present state, not a goal.
   it('DP-256QAM: analysed without slips, penalty below 1.0 dB without phase noise and 3.0 dB at 100 kHz', () => {
     expect(penaltyDb('256qam', 304, 0)).toBeLessThan(1.0);
     expect(penaltyDb('256qam', 305, 100e3)).toBeLessThan(3.0);
