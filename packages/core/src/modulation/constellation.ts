@@ -126,13 +126,18 @@ export function constellation(name: ModulationName): Constellation {
   const hit = cache.get(name);
   if (hit) return hit;
   const spec = nameSpec(name);
-  if (spec === null) throw new RangeError(`constellation: expected ${EXPECTED_NAMES}, received '${String(name)}'`);
+  if (spec === null) throw new RangeError(`constellation: expected ${MODULATION_RULE}, received '${String(name)}'`);
   const c = build(name, spec);
   cache.set(name, c);
   return c;
 }
 
-const EXPECTED_NAMES = `one of ${MODULATIONS.join(', ')}, or ${SHAPED_FAMILIES.join(' or ')} with ':entropy=H' or ':nu=ν' (as ps-64qam:entropy=4.5)`;
+/**
+ * The modulation rule in words, for every message that refuses a name: the
+ * uniform formats, or a shaped family with its parameter.
+ * @example throw new RangeError(`expected ${MODULATION_RULE}, received '8psk'`);
+ */
+export const MODULATION_RULE = `one of ${MODULATIONS.join(', ')}, or ${SHAPED_FAMILIES.join(' or ')} with ':entropy=H' or ':nu=ν' (as ps-64qam:entropy=4.5)`;
 
 interface NameSpec {
   readonly base: UniformModulationName;
@@ -203,7 +208,7 @@ export function isModulationName(value: unknown): value is ModulationName {
  * @example checkModulation('decision-equalizer', 'modulation', '16qam') // '16qam'
  */
 export function checkModulation(where: string, option: string, value: unknown): ModulationName {
-  if (nameSpec(value) === null) throw new OptionError(where, option, EXPECTED_NAMES, value);
+  if (nameSpec(value) === null) throw new OptionError(where, option, MODULATION_RULE, value);
   try {
     constellation(value as ModulationName);
   } catch (e) {
@@ -225,7 +230,7 @@ export function parseModulation(text: string): ModulationName {
   const m = SHAPED_NAME.exec(t);
   const v = m === null ? Number.NaN : Number(m[3].trim());
   if (m === null || m[3].trim() === '' || !Number.isFinite(v))
-    throw new RangeError(`expected a modulation, ${EXPECTED_NAMES}, received '${text}'`);
+    throw new RangeError(`expected a modulation, ${MODULATION_RULE}, received '${text}'`);
   return shapedModulation(`ps-${m[1]}`, m[2] === 'entropy' ? { entropy: v } : { nu: v });
 }
 

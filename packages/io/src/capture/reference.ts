@@ -8,7 +8,13 @@ import {
   type ModulationName,
   nearestLabel,
 } from '@intradyne/core';
-import { type CompactReference, compactReference, ReferenceLabeler, referencePriorProblem } from '@intradyne/metrics';
+import {
+  type CompactReference,
+  compactReference,
+  ReferenceLabeler,
+  ReferencePriorError,
+  referencePriorProblem,
+} from '@intradyne/metrics';
 import { InputError, withLinkTarget } from '../errors/input-error.js';
 import { BufferFeeder, type HeaderCell, listColumns, NumericCsvTable, type TableBlock } from '../load/csv-table.js';
 import { linkTarget, openInput, readInput } from '../load/open-file.js';
@@ -231,8 +237,7 @@ export function compactReferenceOf(symbols: DualPol, modulation: ModulationName,
     return compactReference(symbols, modulation);
   } catch (e) {
     if (!(e instanceof RangeError)) throw e;
-    // The one problem of a shaped reference whose points fit: its prior (referencePriorProblem's wording).
-    const prior = constellation(modulation).shaped && e.message.includes('mean energy');
+    const prior = e instanceof ReferencePriorError;
     throw new InputError(
       { file },
       'reference',
@@ -287,6 +292,7 @@ export function checkReferenceConstellation(symbols: DualPol, c: Constellation, 
  */
 class ConstellationCheck {
   private readonly used: Uint32Array;
+  private readonly ringOfLabel: Uint8Array;
   private readonly bad: (string | null)[] = [null, null];
 
   constructor(
@@ -295,6 +301,12 @@ class ConstellationCheck {
     private readonly peaks: readonly number[],
   ) {
     this.used = new Uint32Array(c.grid !== null ? c.levelsPerAxis : c.ringRadii2.length);
+    // Off a lattice the check counts rings: each label's ring, found once.
+    this.ringOfLabel = new Uint8Array(c.order);
+    for (let k = 0; k < c.order; k++) {
+      const r2 = c.points[2 * k] ** 2 + c.points[2 * k + 1] ** 2;
+      this.ringOfLabel[k] = c.ringRadii2.findIndex((x) => Math.abs(x - r2) < 1e-9);
+    }
   }
 
   add(p: 0 | 1, z: ComplexArray, first: number): void {
@@ -355,8 +367,7 @@ class ConstellationCheck {
           `${first + k + 1}\u0000${z[2 * k]}${z[2 * k + 1] < 0 ? '' : '+'}${z[2 * k + 1]}j, ${off.toFixed(2)} of the least distance away`;
         return;
       }
-      const r2 = c.points[2 * label] ** 2 + c.points[2 * label + 1] ** 2;
-      this.used[c.ringRadii2.findIndex((x) => Math.abs(x - r2) < 1e-9)]++;
+      this.used[this.ringOfLabel[label]]++;
     }
   }
 

@@ -1,5 +1,5 @@
 import { join } from 'node:path';
-import { ALGORITHMS, MODULATIONS, parseModulation, SHAPED_FAMILIES } from '@intradyne/core';
+import { ALGORITHMS, MODULATION_RULE, parseModulation, SHAPED_FAMILIES } from '@intradyne/core';
 import { type AnalysisSettings, analyzeOpenCapture, type FileAnalysis } from '../analysis/analyze-file.js';
 import { readPipelineFile } from '../analysis/pipeline-file.js';
 import { stageSymbolsArrowStreaming } from '../arrow/arrow-write.js';
@@ -73,9 +73,7 @@ export function analysisSettingsFrom(command: string, values: Record<string, str
       parseModulation(modulation);
     } catch (e) {
       if (!(e instanceof RangeError)) throw e;
-      throw new UsageError(
-        `intradyne ${command}: --modulation expected one of ${MODULATIONS.join(', ')}, or ${SHAPED_FAMILIES.join(' or ')} with ':entropy=H' or ':nu=ν' (as ps-64qam:entropy=4.5), received '${modulation}'`,
-      );
+      throw new UsageError(`intradyne ${command}: --modulation expected ${MODULATION_RULE}, received '${modulation}'`);
     }
   }
   const dispersion = values.dispersion as string | undefined;

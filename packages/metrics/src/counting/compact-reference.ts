@@ -1,7 +1,7 @@
 import { type ComplexArray, complexArray, constellation, type DualPol, type ModulationName } from '@intradyne/core';
 import { referenceLabels } from './reference-labels.js';
 import { ReferenceMismatchError } from './reference-mismatch.js';
-import { referencePriorProblem } from './reference-prior.js';
+import { ReferencePriorError, referencePriorProblem } from './reference-prior.js';
 
 /**
  * Transmitted reference symbols held as their constellation labels: 1 byte
@@ -29,8 +29,8 @@ export interface CompactReference {
 /**
  * A reference held as its labels (see {@link CompactReference}).
  * @param reference transmitted symbols, Nt per polarization, any scale
- * @throws ReferenceMismatchError when x and y differ in length, as {@link referenceLabels}, or for a shaped
- *   modulation whose prior the labels do not fit ({@link referencePriorProblem})
+ * @throws ReferenceMismatchError when x and y differ in length, as {@link referenceLabels}, or (ReferencePriorError)
+ *   for a shaped modulation whose prior the labels do not fit ({@link referencePriorProblem})
  * @example const ref = compactReference(cap.reference, '16qam'); ref.labels.x[0];
  */
 export function compactReference(reference: DualPol, modulation: ModulationName): CompactReference {
@@ -40,7 +40,7 @@ export function compactReference(reference: DualPol, modulation: ModulationName)
     throw new ReferenceMismatchError(`compactReference: reference x has ${symbols} symbols, y has ${reference.y.length >> 1}`);
   const labels = { x: referenceLabels(c, reference.x), y: referenceLabels(c, reference.y) };
   const problem = referencePriorProblem(c, [labels.x, labels.y]);
-  if (problem !== null) throw new ReferenceMismatchError(`compactReference: ${problem}`);
+  if (problem !== null) throw new ReferencePriorError(`compactReference: ${problem}`);
   return { modulation, symbols, labels };
 }
 

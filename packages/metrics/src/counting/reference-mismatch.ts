@@ -7,5 +7,5 @@
  */
 export class ReferenceMismatchError extends RangeError {
   /** Always 'ReferenceMismatchError'. */
-  override readonly name = 'ReferenceMismatchError';
+  override readonly name: string = 'ReferenceMismatchError';
 }

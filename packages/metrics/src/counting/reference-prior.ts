@@ -1,4 +1,15 @@
 import type { Constellation } from '@intradyne/core';
+import { ReferenceMismatchError } from './reference-mismatch.js';
+
+/**
+ * Thrown when a shaped reference's points fit the constellation but its
+ * symbols do not look drawn from the stated prior ({@link referencePriorProblem}).
+ * @example try { compactReference(ref, 'ps-64qam:entropy=4.5'); } catch (e) { if (e instanceof ReferencePriorError) console.log('is the shaping right?'); }
+ */
+export class ReferencePriorError extends ReferenceMismatchError {
+  /** Always 'ReferencePriorError'. */
+  override readonly name: string = 'ReferencePriorError';
+}
 
 /**
  * Standard errors by which the mean energy of a shaped reference may
