@@ -232,21 +232,27 @@ export class BlindPhaseSearchKernel implements PairPhaseKernel {
  * a constant, whatever N₁ and N₂; the look-ahead is N₁ + N₂.
  * @example const phase = runKernel(new CoarseFinePhaseKernel(constellation('64qam')), symbols.x);
  */
-export class CoarseFinePhaseKernel implements PhaseKernel {
+export class CoarseFinePhaseKernel implements PairPhaseKernel {
   readonly delay: number;
   private readonly coarse: BlindPhaseSearchKernel;
   private readonly n1: number;
   private readonly len2: number;
-  /** Input symbols waiting for their coarse phase (N₁ + 1 slots). */
-  private readonly inRe: Float64Array;
-  private readonly inIm: Float64Array;
+  /** Input symbols waiting for their coarse phase (N₁ + 1 slots): x, and y for pairs. */
+  private readonly xRe: Float64Array;
+  private readonly xIm: Float64Array;
+  private readonly yRe: Float64Array;
+  private readonly yIm: Float64Array;
   private readonly inPresent: Uint8Array;
   /** Coarse phases waiting for their fine window (N₂ + 1 slots). */
   private readonly coarsePhase: Float64Array;
+  /** Products r·â* of the fine window (both polarizations' summed, for pairs). */
   private readonly uRe: Float64Array;
   private readonly uIm: Float64Array;
   private sumRe = 0;
   private sumIm = 0;
+  /** The product of the last {@link addProduct}, kept in fields so that `push` does not allocate. */
+  private productRe = 0;
+  private productIm = 0;
   private pushed = 0;
   private centres = 0;
   private readonly scale: number;
@@ -262,8 +268,10 @@ export class CoarseFinePhaseKernel implements PhaseKernel {
     this.n2 = options.fineHalfWindow ?? this.n1;
     this.len2 = 2 * this.n2 + 1;
     this.delay = this.n1 + this.n2;
-    this.inRe = new Float64Array(this.n1 + 1);
-    this.inIm = new Float64Array(this.n1 + 1);
+    this.xRe = new Float64Array(this.n1 + 1);
+    this.xIm = new Float64Array(this.n1 + 1);
+    this.yRe = new Float64Array(this.n1 + 1);
+    this.yIm = new Float64Array(this.n1 + 1);
     this.inPresent = new Uint8Array(this.n1 + 1);
     this.coarsePhase = new Float64Array(this.n2 + 1);
     this.uRe = new Float64Array(this.len2);
@@ -274,35 +282,47 @@ export class CoarseFinePhaseKernel implements PhaseKernel {
   }
 
   push(re: number, im: number, present: boolean): number {
+    this.hold(re, im, 0, 0, present);
+    return this.fine(this.coarse.push(re, im, present), false);
+  }
+
+  /**
+   * One phase from both polarizations, as {@link BlindPhaseSearchKernel.pushPair}
+   * for the coarse step: the fine sum then holds both symbols' products.
+   */
+  pushPair(xr: number, xi: number, yr: number, yi: number, present: boolean): number {
+    this.hold(xr, xi, yr, yi, present);
+    return this.fine(this.coarse.pushPair(xr, xi, yr, yi, present), true);
+  }
+
+  private hold(xr: number, xi: number, yr: number, yi: number, present: boolean): void {
     const s = this.pushed % (this.n1 + 1);
-    this.inRe[s] = re;
-    this.inIm[s] = im;
+    this.xRe[s] = xr;
+    this.xIm[s] = xi;
+    this.yRe[s] = yr;
+    this.yIm[s] = yi;
     this.inPresent[s] = present ? 1 : 0;
     this.pushed++;
-    const theta1 = this.coarse.push(re, im, present);
+  }
+
+  /** Takes the coarse phase of centre c = pushed − 1 − N₁ and returns the fine phase of c − N₂. */
+  private fine(theta1: number, pair: boolean): number {
     if (Number.isNaN(theta1)) return Number.NaN;
-    // Coarse centre c = pushed − 1 − N₁: its symbol, decision and product u = r·â*.
     const c = this.centres++;
     const t = c % (this.n1 + 1);
     let ur = 0;
     let ui = 0;
     if (this.inPresent[t] === 1) {
-      const rr = this.inRe[t];
-      const ri = this.inIm[t];
       const cs = Math.cos(theta1);
       const sn = Math.sin(theta1);
-      let ar: number;
-      let ai: number;
-      if (this.c.square) {
-        ar = slice(rr * cs + ri * sn, this.scale, this.inv, this.top);
-        ai = slice(ri * cs - rr * sn, this.scale, this.inv, this.top);
-      } else {
-        const l = nearestLabel(this.c, rr * cs + ri * sn, ri * cs - rr * sn);
-        ar = this.c.points[2 * l];
-        ai = this.c.points[2 * l + 1];
+      this.product(this.xRe[t], this.xIm[t], cs, sn);
+      ur = this.productRe;
+      ui = this.productIm;
+      if (pair) {
+        this.product(this.yRe[t], this.yIm[t], cs, sn);
+        ur += this.productRe;
+        ui += this.productIm;
       }
-      ur = rr * ar + ri * ai;
-      ui = ri * ar - rr * ai;
     }
     this.coarsePhase[c % (this.n2 + 1)] = theta1;
     const slot = c % this.len2;
@@ -317,10 +337,28 @@ export class CoarseFinePhaseKernel implements PhaseKernel {
     return coarseAt + wrapAngle(Math.atan2(this.sumIm, this.sumRe) - coarseAt);
   }
 
+  /** u = r·â*, â the decision on r·e^(−jθ¹) (cs = cos θ¹, sn = sin θ¹), into productRe/productIm. */
+  private product(rr: number, ri: number, cs: number, sn: number): void {
+    let ar: number;
+    let ai: number;
+    if (this.c.square) {
+      ar = slice(rr * cs + ri * sn, this.scale, this.inv, this.top);
+      ai = slice(ri * cs - rr * sn, this.scale, this.inv, this.top);
+    } else {
+      const l = nearestLabel(this.c, rr * cs + ri * sn, ri * cs - rr * sn);
+      ar = this.c.points[2 * l];
+      ai = this.c.points[2 * l + 1];
+    }
+    this.productRe = rr * ar + ri * ai;
+    this.productIm = ri * ar - rr * ai;
+  }
+
   reset(): void {
     this.coarse.reset();
-    this.inRe.fill(0);
-    this.inIm.fill(0);
+    this.xRe.fill(0);
+    this.xIm.fill(0);
+    this.yRe.fill(0);
+    this.yIm.fill(0);
     this.inPresent.fill(0);
     this.coarsePhase.fill(0);
     this.uRe.fill(0);

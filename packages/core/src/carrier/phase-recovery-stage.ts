@@ -202,10 +202,6 @@ export function blindPhaseSearch(options: BlindPhaseSearchStageOptions): Stage<'
     throw new OptionError(name, 'variant', "'single' or 'coarse-fine'", variant);
   if (variant === 'single' && options.fineHalfWindow !== undefined)
     throw new OptionError(name, 'fineHalfWindow', "to be given only with variant 'coarse-fine'", options.fineHalfWindow);
-  if (variant === 'coarse-fine' && options.polarizations === 'joint')
-    throw new OptionError(name, 'polarizations', "'separate' with variant 'coarse-fine'", options.polarizations);
-  if (variant === 'coarse-fine' && options.halfWindow === 'auto')
-    throw new OptionError(name, 'halfWindow', "a number with variant 'coarse-fine'", options.halfWindow);
   const halfWindow = options.halfWindow ?? 12;
   const testPhases = options.testPhases ?? defaultTestPhases(c);
   const record: Record<string, JsonValue> = {
@@ -219,7 +215,7 @@ export function blindPhaseSearch(options: BlindPhaseSearchStageOptions): Stage<'
     variant === 'coarse-fine'
       ? new CoarseFinePhaseKernel(c, { ...options, testPhases, halfWindow: n })
       : new BlindPhaseSearchKernel(c, { ...options, testPhases, halfWindow: n });
-  return new PhaseRecoveryStage(name, record, make, c, { ...options, halfWindow }, variant === 'single');
+  return new PhaseRecoveryStage(name, record, make, c, { ...options, halfWindow }, true);
 }
 
 /**

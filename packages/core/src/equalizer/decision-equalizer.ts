@@ -1,3 +1,4 @@
+import { PhaseRefinement } from '../carrier/phase-refinement.js';
 import {
   type Constellation,
   checkModulation,
@@ -15,6 +16,13 @@ import { butterflyOutput, FILTER_XX, FILTER_XY, FILTER_YX, FILTER_YY, updateRow 
 import type { ButterflyTaps } from './equalizer.js';
 
 const NAME = 'decision-equalizer';
+
+function joinComplex(a: ComplexArray, b: ComplexArray): ComplexArray {
+  const out = complexArray((a.length + b.length) >> 1);
+  out.set(a);
+  out.set(b, a.length);
+  return out;
+}
 
 /** Options of {@link decisionEqualizer}; only `modulation` is required. */
 export interface DecisionEqualizerOptions {
@@ -36,6 +44,15 @@ export interface DecisionEqualizerOptions {
     /** Passes over them (0 … 100). */
     readonly passes: number;
   };
+  /**
+   * Refine the carrier phase of the output over a window of 2N + 1 symbol
+   * pairs and their decisions ({@link PhaseRefinement}); absent: no
+   * refinement. Delays the output by N symbols.
+   */
+  readonly phaseRefinement?: {
+    /** N, symbols (integer 0 … 1024). */
+    readonly halfWindow: number;
+  };
 }
 
 /** What {@link decisionEqualizer} reports. */
@@ -44,6 +61,8 @@ export interface DecisionEqualizerDiagnostics {
   readonly taps: number;
   /** Symbols delivered so far, per polarization. */
   readonly symbols: number;
+  /** Half window of the phase refinement of the output, symbols; null without one. */
+  readonly phaseRefinementHalfWindow: number | null;
   /** Mean |d − z|² of the outputs against their decisions over the last 4,096 symbols delivered, per polarization. */
   readonly decisionErrorPower: {
     /** Of the x output. */
@@ -104,6 +123,10 @@ class DecisionEqualizer implements Stage<'symbols', 'symbols', DecisionEqualizer
   private received = 0;
   private delivered = 0;
   private sampleRate = Number.NaN;
+  /** Refines the output's carrier phase, when asked for. */
+  private readonly refinement: PhaseRefinement | null;
+  /** Symbols given out (after the refinement's look-ahead). */
+  private given = 0;
 
   constructor(o: DecisionEqualizerOptions) {
     const fail = (option: string, expected: string, received: unknown): never => {
@@ -119,7 +142,14 @@ class DecisionEqualizer implements Stage<'symbols', 'symbols', DecisionEqualizer
     if (!Number.isInteger(start.symbols) || start.symbols < 1) fail('convergeOnStart.symbols', 'an integer ≥ 1', start.symbols);
     if (!Number.isInteger(start.passes) || start.passes < 0 || start.passes > 100)
       fail('convergeOnStart.passes', 'an integer from 0 to 100', start.passes);
+    const refine = o.phaseRefinement;
+    if (refine !== undefined) {
+      const n = refine?.halfWindow;
+      if (!Number.isInteger(n) || (n as number) < 0 || (n as number) > 1024)
+        fail('phaseRefinement.halfWindow', 'an integer from 0 to 1024', n);
+    }
     this.c = constellation(o.modulation);
+    this.refinement = refine ? new PhaseRefinement(this.c, refine.halfWindow) : null;
     this.L = L;
     this.centre = (L - 1) / 2;
     this.mu = mu;
@@ -156,6 +186,8 @@ class DecisionEqualizer implements Stage<'symbols', 'symbols', DecisionEqualizer
     this.lineStart = -this.centre;
     this.received = 0;
     this.delivered = 0;
+    this.given = 0;
+    this.refinement?.reset();
     this.sampleRate = Number.NaN;
     this.errors.fill(0);
     this.errorFill = 0;
@@ -174,7 +206,8 @@ class DecisionEqualizer implements Stage<'symbols', 'symbols', DecisionEqualizer
     const n = this.errorFill;
     return {
       taps: L,
-      symbols: this.delivered,
+      symbols: this.given,
+      phaseRefinementHalfWindow: this.refinement?.halfWindow ?? null,
       decisionErrorPower: { x: n > 0 ? ex / n : Number.NaN, y: n > 0 ? ey / n : Number.NaN },
       finalTaps: { xx: filter(FILTER_XX), xy: filter(FILTER_XY), yx: filter(FILTER_YX), yy: filter(FILTER_YY) },
     };
@@ -188,12 +221,27 @@ class DecisionEqualizer implements Stage<'symbols', 'symbols', DecisionEqualizer
         taps: this.L,
         stepSize: this.mu,
         convergeOnStart: { symbols: this.startSymbols, passes: this.passes },
+        phaseRefinement: this.refinement ? { halfWindow: this.refinement.halfWindow } : null,
       },
     };
   }
 
-  private out(x: ComplexArray, y: ComplexArray): FieldBlock<'symbols'> {
-    return fieldBlock('symbols', x, y, this.sampleRate, 1);
+  /** The block given out: the equalized symbols, through the phase refinement when there is one. */
+  private out(x: ComplexArray, y: ComplexArray, final = false): FieldBlock<'symbols'> {
+    let ox = x;
+    let oy = y;
+    if (this.refinement !== null) {
+      const r = this.refinement.process(x, y);
+      ox = r.x;
+      oy = r.y;
+      if (final) {
+        const tail = this.refinement.finish();
+        ox = joinComplex(ox, tail.x);
+        oy = joinComplex(oy, tail.y);
+      }
+    }
+    this.given += ox.length >> 1;
+    return fieldBlock('symbols', ox, oy, this.sampleRate, 1);
   }
 
   /** Adapts over the held start `passes` times, then streams everything held from its first symbol. */
@@ -238,7 +286,7 @@ class DecisionEqualizer implements Stage<'symbols', 'symbols', DecisionEqualizer
     this.lineX = ux.slice(2 * keepFrom, 2 * (lineLen + nNew)) as ComplexArray;
     this.lineY = uy.slice(2 * keepFrom, 2 * (lineLen + nNew)) as ComplexArray;
     this.lineStart += keepFrom;
-    return this.out(outX, outY);
+    return this.out(outX, outY, final);
   }
 
   /**

@@ -8,8 +8,14 @@ import type { ChannelName } from '../signal/dual-pol.js';
 export interface NormalizeChannelsOptions {
   /**
    * Samples per channel at the start of the capture on which the mean and
-   * the rms are estimated (default 65,536). They are held back until they
-   * have all arrived; a shorter capture uses all its samples.
+   * the rms are estimated (default 262,144). They are held back until they
+   * have all arrived; a shorter capture uses all its samples. The data
+   * themselves move the mean of a span of N samples by about σ·√(2/N) (a
+   * band-limited signal at 2 samples per symbol has twice its average
+   * density at DC), and that error stays in the field as a constant
+   * offset no later stage removes: −45 dB per channel at 65,536 samples
+   * held the implementation SNR of DP-256QAM near 40 dB; −51 dB at the
+   * default (measured: 46.5 dB).
    */
   readonly calibrationSamples?: number;
   /** Subtract each channel's mean (default true). */
@@ -87,7 +93,7 @@ class NormalizeChannels implements Stage<'channels', 'channels', NormalizeChanne
   private samples = 0;
 
   constructor(o: NormalizeChannelsOptions) {
-    this.calibrationSamples = o.calibrationSamples ?? 65_536;
+    this.calibrationSamples = o.calibrationSamples ?? 262_144;
     if (!Number.isInteger(this.calibrationSamples) || this.calibrationSamples < 1) {
       throw new OptionError(this.name, 'calibrationSamples', 'a positive integer', o.calibrationSamples);
     }

@@ -12,8 +12,11 @@ export interface OrthogonalizeIqOptions {
   readonly method?: OrthogonalizationMethod;
   /**
    * Samples per channel at the start of the capture on which the
-   * correlations are estimated (default 65,536); held back until they have
-   * all arrived.
+   * correlations are estimated (default 262,144); held back until they have
+   * all arrived. The data's own correlation over N samples departs from 0 by
+   * about √(2/N) (twice the average density at DC at 2 samples per symbol),
+   * a Q axis turned by that much: an image at −45 dB for 65,536 samples,
+   * −51 dB at the default.
    */
   readonly calibrationSamples?: number;
 }
@@ -111,7 +114,7 @@ class OrthogonalizeIq implements Stage<'channels', 'channels', OrthogonalizeIqDi
     if (this.method !== 'gsop' && this.method !== 'lowdin') {
       throw new OptionError(this.name, 'method', "'gsop' or 'lowdin'", o.method);
     }
-    this.calibrationSamples = o.calibrationSamples ?? 65_536;
+    this.calibrationSamples = o.calibrationSamples ?? 262_144;
     if (!Number.isInteger(this.calibrationSamples) || this.calibrationSamples < 1) {
       throw new OptionError(this.name, 'calibrationSamples', 'a positive integer', o.calibrationSamples);
     }

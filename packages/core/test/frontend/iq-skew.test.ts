@@ -67,4 +67,27 @@ describe('blind I/Q skew', () => {
     expect(Number.isNaN(e.xPs)).toBe(true);
     expect(Number.isNaN(e.yPs)).toBe(true);
   });
+
+  it('shrinks a skew measured within its noise towards zero, and removes a large one whole', () => {
+    // No skew on the channels: every capture's measured delay is noise. The removed delay is the
+    // measured one times max(0, 1 − s²/τ̂²) (positive-part James–Stein), so it is never larger than
+    // the measured one and is zero whenever the measurement is within one standard error of zero.
+    for (const seed of [61, 62, 63]) {
+      const { d } = skewOf({}, 0, seed);
+      const e = d.iqSkew!;
+      for (const [tau, se] of [
+        [e.xPs, e.xStandardErrorPs],
+        [e.yPs, e.yStandardErrorPs],
+      ]) {
+        expect(se).toBeGreaterThan(0);
+        // A 3 ps skew is ten or more standard errors: the noise of this span is well under 0.3 ps.
+        expect(se).toBeLessThan(0.3);
+        // What is left of pure noise: at most a few standard errors (the shrinkage only ever reduces it).
+        expect(Math.abs(tau)).toBeLessThan(4 * se);
+      }
+    }
+    const big = skewOf({ xq: 3 }, 0, 64).d.iqSkew!;
+    // Shrinking by s²/τ̂² at τ̂ ≈ 3 ps and s < 0.3 ps moves it by under 1 %.
+    expect(Math.abs(big.xPs - 3)).toBeLessThan(0.5);
+  });
 });

@@ -137,6 +137,19 @@ export const stageCatalog: CatalogEntry[] = [
     input: () => randomField('symbols', 600, 26, 32e9, 1),
   },
   {
+    name: 'blind-phase-search (coarse-fine, joint, window chosen on the start)',
+    make: () =>
+      blindPhaseSearch({
+        modulation: '16qam',
+        testPhases: 8,
+        halfWindow: 'auto',
+        variant: 'coarse-fine',
+        polarizations: 'joint',
+        calibrationSymbols: 300,
+      }),
+    input: () => randomField('symbols', 900, 47, 32e9, 1),
+  },
+  {
     name: 'blind-phase-search (stream shorter than the look-ahead)',
     make: () => blindPhaseSearch({ modulation: '64qam', halfWindow: 20 }),
     input: () => randomField('symbols', 15, 27, 32e9, 1),
@@ -266,6 +279,28 @@ export const stageCatalog: CatalogEntry[] = [
     name: 'decision equalizer (passes over the start)',
     make: () => decisionEqualizer({ modulation: '16qam', taps: 5, convergeOnStart: { symbols: 200, passes: 2 } }),
     input: () => randomField('symbols', 700, 43, 32e9, 1),
+  },
+  {
+    name: 'decision equalizer (phase refinement of the output)',
+    make: () =>
+      decisionEqualizer({
+        modulation: '16qam',
+        taps: 5,
+        convergeOnStart: { symbols: 200, passes: 2 },
+        phaseRefinement: { halfWindow: 6 },
+      }),
+    input: () => randomField('symbols', 700, 45, 32e9, 1),
+  },
+  {
+    name: 'decision equalizer (phase refinement, stream shorter than its window)',
+    make: () =>
+      decisionEqualizer({
+        modulation: '256qam',
+        taps: 3,
+        convergeOnStart: { symbols: 1, passes: 0 },
+        phaseRefinement: { halfWindow: 9 },
+      }),
+    input: () => randomField('symbols', 5, 46, 32e9, 1),
   },
   {
     name: 'decision equalizer (streaming, stream shorter than the window)',

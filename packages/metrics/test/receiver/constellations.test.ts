@@ -45,16 +45,18 @@ describe('default receiver on the added formats, against AWGN theory', () => {
     expect(penaltyDb('32qam', 302, 100e3)).toBeLessThan(0.5); // measured 0.26 dB (0.31 on another seed)
   });
 
-  it('DP-128QAM at 100 kHz: penalty ≤ 0.8 dB', () => {
-    // Measured 0.52–0.67 dB over six seeds (this one 0.52 dB). The issue sets no floor for 128QAM.
-    expect(penaltyDb('128qam', 303, 100e3)).toBeLessThan(0.8);
+  it('DP-128QAM at 100 kHz: penalty ≤ 0.5 dB', () => {
+    // Measured 0.21 dB on this seed (0.25 on another). The issue sets no floor for 128QAM.
+    expect(penaltyDb('128qam', 303, 100e3)).toBeLessThan(0.5);
   });
 
-  // 256QAM does not reach 0.5 dB yet: 1.6–2.2 dB at 100 kHz over the seeds tried, 0.67–0.76 dB
-  // without phase noise; the blind phase search's phase error at Δν·T ≈ 3e-6 is most of it. These
-  // bounds guard the present state, not a goal.
-  it('DP-256QAM: analysed without slips, penalty below 1.0 dB without phase noise and 3.0 dB at 100 kHz', () => {
-    expect(penaltyDb('256qam', 304, 0)).toBeLessThan(1.0);
-    expect(penaltyDb('256qam', 305, 100e3)).toBeLessThan(3.0);
+  it('DP-256QAM without phase noise: penalty ≤ 0.5 dB', () => {
+    expect(penaltyDb('256qam', 304, 0)).toBeLessThan(0.5); // measured 0.19 dB (0.21 on another seed)
+  });
+
+  // 256QAM at 100 kHz does not reach 0.5 dB on every capture yet: 0.36, 0.37, 0.42, 0.56 and 0.85 dB
+  // over five seeds (this one the 0.85). This bound guards the present state, not the goal.
+  it('DP-256QAM at 100 kHz: analysed without slips, penalty below 1.0 dB', () => {
+    expect(penaltyDb('256qam', 305, 100e3)).toBeLessThan(1.0);
   });
 });
