@@ -1,6 +1,6 @@
 import { type Constellation, nearestLabel } from '../modulation/constellation.js';
 import type { ComplexArray } from '../signal/complex.js';
-import { type PairPhaseKernel, type PhaseKernel, runKernel } from './phase-kernel.js';
+import { type PairPhaseKernel, runKernel } from './phase-kernel.js';
 import { QUARTER_TURN, unwrapPhase, wrapAngle } from './phase-unwrap.js';
 
 /** Options of the blind-phase-search estimator. */
