@@ -46,13 +46,15 @@ export interface DecisionEqualizerOptions {
   };
   /**
    * Refine the carrier phase of the output over a window of 2N + 1 symbol
-   * pairs and their decisions ({@link PhaseRefinement}); absent: no
-   * refinement. Delays the output by N symbols.
+   * pairs and their decisions ({@link PhaseRefinement}); absent or false:
+   * no refinement. Delays the output by N symbols.
    */
-  readonly phaseRefinement?: {
-    /** N, symbols (integer 0 … 1024). */
-    readonly halfWindow: number;
-  };
+  readonly phaseRefinement?:
+    | {
+        /** N, symbols (integer 0 … 1024). */
+        readonly halfWindow: number;
+      }
+    | false;
 }
 
 /** What {@link decisionEqualizer} reports. */
@@ -143,8 +145,8 @@ class DecisionEqualizer implements Stage<'symbols', 'symbols', DecisionEqualizer
     if (!Number.isInteger(start.passes) || start.passes < 0 || start.passes > 100)
       fail('convergeOnStart.passes', 'an integer from 0 to 100', start.passes);
     const refine = o.phaseRefinement;
-    if (refine !== undefined) {
-      const n = refine?.halfWindow;
+    if (refine !== undefined && refine !== false) {
+      const n = (refine as { halfWindow?: unknown } | null)?.halfWindow;
       if (!Number.isInteger(n) || (n as number) < 0 || (n as number) > 1024)
         fail('phaseRefinement.halfWindow', 'an integer from 0 to 1024', n);
     }

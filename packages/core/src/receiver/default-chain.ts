@@ -271,9 +271,8 @@ function isDense(modulation: ModulationName): boolean {
  * with a random polarization and 10 ps DGD, without noise), and the
  * decision equalizer after the carrier recovery, which removes the
  * residual, cannot follow wandering taps. Measured on DP-256QAM at BER 1e-3
- * and 100 kHz over seeds 311–316: a penalty of 0.4–0.6 dB against 1.0–2.1
- * with the 64QAM-like defaults (the phase refinement of the decision
- * equalizer included in both).
+ * and 100 kHz (seeds 305 and 311): a penalty of 0.45 and 0.44 dB, against
+ * 0.61 and 0.99 with the 64QAM-like defaults.
  */
 const DENSE_EQUALIZER = {
   preConvergenceSymbols: 16384,
@@ -282,18 +281,24 @@ const DENSE_EQUALIZER = {
 } as const;
 
 /**
- * Clock-loop bandwidth for dense constellations, of the symbol rate: the
- * timing jitter of the 1e-4 loop costs them 1–1.5 dB of implementation SNR
- * with 10 ps DGD (measured on DP-256QAM without noise: 38.0 against 39.8
- * dB); the clock acquisition still preloads the loop with the offset found.
+ * Clock-loop bandwidth for dense constellations, of the symbol rate. Their
+ * blind equalizer is held nearly still, so it cannot follow the loop's
+ * wander, which is large where DGD weakens the timing line: with 1e-4 or
+ * 2e-5 the loop drifted a whole symbol over 2^17 symbols on one DP-256QAM
+ * capture in three (10 ps DGD, random polarization), at up to 0.85 dB of
+ * penalty; with 5e-6 none did, and the penalty at BER 1e-3 and 100 kHz was
+ * 0.31–0.49 dB over thirteen seeds. The clock acquisition still preloads
+ * the loop with the offset it found (measured at −200 ppm: 0.47 dB).
  */
-const DENSE_TIMING_BANDWIDTH = 2e-5;
+const DENSE_TIMING_BANDWIDTH = 5e-6;
 
 /**
  * Half window of the decision equalizer's phase refinement for dense
- * constellations: 17 symbol pairs. Measured on DP-256QAM at BER 1e-3 and
- * 100 kHz: penalties within 0.05 dB of each other for N = 6 … 9, 0.03–0.04
- * dB more at 4 and at 14.
+ * constellations: 17 symbol pairs. The first phase estimate is made on the
+ * blind equalizer's output, several dB below the refined symbols' SNR;
+ * measured on DP-256QAM at BER 1e-3 and 100 kHz (seeds 305 and 311): 0.45
+ * and 0.44 dB of penalty, against 0.82 and 0.82 without the refinement;
+ * within 0.05 dB of each other for N = 6 … 9, 0.03–0.04 dB more at 4 and 14.
  */
 const DENSE_REFINEMENT_HALF_WINDOW = 8;
 
@@ -329,7 +334,10 @@ export function defaultReceiver<R extends ReplacedStages = NoReplacement>(
   // phase noise of the capture: a fixed window is either too short at low
   // SNR (slips) or too long for wide linewidths. Measured: 16QAM at 12 dB
   // without phase noise slipped 52 times in 2^17 symbols with separate
-  // estimates over 49 symbols, none jointly over the chosen window.
+  // estimates over 49 symbols, none jointly over the chosen window. Dense
+  // constellations add the fine step of the coarse-fine search (measured on
+  // DP-256QAM at BER 1e-3 and 100 kHz, seeds 305 and 311: 0.45 and 0.44 dB
+  // of penalty, against 0.57 and 0.58 with the search alone).
   const dense = isDense(s.modulation);
   const phaseOptions = {
     modulation: s.modulation,

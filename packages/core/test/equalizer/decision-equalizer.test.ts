@@ -42,5 +42,10 @@ describe('decisionEqualizer', () => {
     expect(() => decisionEqualizer({ modulation: '16qam', taps: 4 })).toThrow(OptionError);
     expect(() => decisionEqualizer({ modulation: '16qam', stepSize: 0 })).toThrow(/stepSize/);
     expect(() => decisionEqualizer({ modulation: '8psk' as '16qam' })).toThrow(/modulation/);
+    expect(() => decisionEqualizer({ modulation: '16qam', phaseRefinement: { halfWindow: -1 } })).toThrow(/phaseRefinement/);
+    expect(() => decisionEqualizer({ modulation: '16qam', phaseRefinement: null as unknown as false })).toThrow(
+      /phaseRefinement/,
+    );
+    expect(decisionEqualizer({ modulation: '16qam', phaseRefinement: false }).diagnostics().phaseRefinementHalfWindow).toBeNull();
   });
 });
