@@ -42,7 +42,7 @@ export {
   type ViterbiViterbiStageOptions,
   viterbiViterbi,
 } from './carrier/phase-recovery-stage.js';
-export { PhaseRefinement } from './carrier/phase-refinement.js';
+export { PhaseRefinement, type RefinedSymbols } from './carrier/phase-refinement.js';
 export { QUARTER_TURN, unwrapPhase, wrapAngle } from './carrier/phase-unwrap.js';
 export * from './carrier/phase-window.js';
 export { cycleSlipsFromPhase, type PhaseJumpOptions, PhaseJumpSlipDetector } from './carrier/slips-phase-jump.js';

@@ -1,6 +1,14 @@
 import { type Constellation, nearestLabel, nearestLevel } from '../modulation/constellation.js';
 import { type ComplexArray, complexArray } from '../signal/complex.js';
 
+/** Symbol pairs given out by {@link PhaseRefinement}. */
+export interface RefinedSymbols {
+  /** The x symbols. */
+  readonly x: ComplexArray;
+  /** The y symbols. */
+  readonly y: ComplexArray;
+}
+
 /**
  * Decision-directed refinement of the carrier phase of symbols that are
  * already carrier-recovered and equalized: each symbol pair (x, y) is turned
@@ -63,7 +71,7 @@ export class PhaseRefinement {
   }
 
   /** Takes a block of symbol pairs and returns the refined ones whose windows are complete. */
-  process(x: ComplexArray, y: ComplexArray): { x: ComplexArray; y: ComplexArray } {
+  process(x: ComplexArray, y: ComplexArray): RefinedSymbols {
     const n = x.length >> 1;
     const ready = Math.max(0, this.pushed + n - this.halfWindow - this.given);
     const outX = complexArray(ready);
@@ -77,7 +85,7 @@ export class PhaseRefinement {
   }
 
   /** The last N refined symbols (fewer for a shorter stream), their windows cut short by the end. */
-  finish(): { x: ComplexArray; y: ComplexArray } {
+  finish(): RefinedSymbols {
     const rest = this.pushed - this.given;
     const outX = complexArray(rest);
     const outY = complexArray(rest);
@@ -88,6 +96,7 @@ export class PhaseRefinement {
     return { x: outX, y: outY };
   }
 
+  /** Back to the freshly created state. */
   reset(): void {
     this.heldX.fill(0);
     this.heldY.fill(0);
