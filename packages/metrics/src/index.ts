@@ -29,6 +29,7 @@ export * from './quality/evm.js';
 export * from './quality/gain.js';
 export * from './quality/snr.js';
 export * from './receiver/analyze.js';
+export * from './receiver/reference-acquisition.js';
 // Synchronization with the reference.
 export * from './sync/synchronize.js';
 // Theory (AWGN).

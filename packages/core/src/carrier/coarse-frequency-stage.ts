@@ -15,6 +15,13 @@ export interface CoarseFrequencyOptions<D extends WaveformDomain = 'twoSps'> {
   readonly domain?: D;
   /** Leading samples per polarization the estimate is made on (held back until then), at least 1,024 (default 65,536). */
   readonly estimateSamples?: number;
+  /**
+   * A known offset, Hz (x rotating as exp(+j2π·f·t)): removed as it is,
+   * nothing estimated and nothing held back (excludes `estimateSamples`).
+   * For signals whose fourth power holds no tone, as shaped QAM's, whose
+   * offset is found against the reference instead.
+   */
+  readonly freqOffsetHz?: number;
 }
 
 /** What the coarse frequency stage learned. */
@@ -57,6 +64,8 @@ class CoarseFrequency<D extends WaveformDomain> implements Stage<D, D, CoarseFre
   private readonly span: LeadingSpan<FieldBlock>;
   private estimate = Number.NaN;
   private delivered = 0;
+  /** The offset given, or null to estimate it. */
+  private readonly known: number | null;
 
   constructor(options: CoarseFrequencyOptions<D>) {
     this.input = (options.domain ?? 'twoSps') as D;
@@ -65,27 +74,37 @@ class CoarseFrequency<D extends WaveformDomain> implements Stage<D, D, CoarseFre
       throw new OptionError(NAME, 'domain', "'twoSps' or 'field'", this.input);
     const span = options.estimateSamples ?? 65_536;
     if (!Number.isInteger(span) || span < 1024) throw new OptionError(NAME, 'estimateSamples', 'an integer ≥ 1024', span);
+    const known = options.freqOffsetHz;
+    if (known !== undefined) {
+      if (typeof known !== 'number' || !Number.isFinite(known))
+        throw new OptionError(NAME, 'freqOffsetHz', 'a finite offset in Hz', known);
+      if (options.estimateSamples !== undefined)
+        throw new OptionError(NAME, 'estimateSamples', 'no estimate span with a known freqOffsetHz', options.estimateSamples);
+    }
+    this.known = known ?? null;
     this.spanSamples = span;
     this.span = new LeadingSpan(span);
+    if (this.known !== null) this.estimate = this.known;
   }
 
   process(input: BlockOf<D>): BlockOf<D> {
     const block = input as FieldBlock;
     checkBlock(NAME, block, this.input);
-    if (this.span.ready) return this.shift(block);
+    if (this.known !== null || this.span.ready) return this.shift(block);
     const r = this.span.push(block);
     if (!r) return emptyBlock(this.output, block.sampleRate, block.samplesPerSymbol);
     return this.estimateAndShift(r.calibration, r.all);
   }
 
   flush(): BlockOf<D> | null {
+    if (this.known !== null) return null;
     const r = this.span.finish();
     return r ? this.estimateAndShift(r.calibration, r.all) : null;
   }
 
   reset(): void {
     this.span.reset();
-    this.estimate = Number.NaN;
+    this.estimate = this.known ?? Number.NaN;
     this.delivered = 0;
   }
 
@@ -94,6 +113,7 @@ class CoarseFrequency<D extends WaveformDomain> implements Stage<D, D, CoarseFre
   }
 
   describe(): StageRecord {
+    if (this.known !== null) return { stage: NAME, options: { domain: this.input, freqOffsetHz: this.known } };
     return { stage: NAME, options: { domain: this.input, estimateSamples: this.spanSamples } };
   }
 

@@ -35,6 +35,14 @@ export interface FrequencyOffsetOptions {
   readonly trackingSymbols?: number;
   /** Zero-padding factor of the periodogram (1, 2, 4, 8 or 16; default 4). */
   readonly padding?: number;
+  /**
+   * A known offset, Hz: removed as it is from the whole stream, nothing
+   * estimated and nothing held back (excludes `estimateSymbols` and
+   * `trackingSymbols`). 0 passes the symbols through: for shaped QAM,
+   * whose fourth power holds no tone to estimate from, once the offset was
+   * found against the reference and removed before.
+   */
+  readonly freqOffsetHz?: number;
 }
 
 /** One estimate of the offset and the span of symbols it was made on and removed from. */
@@ -107,6 +115,8 @@ class FrequencyOffsetStage implements Stage<'symbols', 'symbols', FrequencyOffse
   private delivered = 0;
   private track: FrequencyEstimate[] = [];
   private sampleRate = Number.NaN;
+  /** The offset given, or null to estimate it. */
+  private readonly known: number | null;
 
   constructor(o: FrequencyOffsetOptions) {
     const method = o.method ?? 'periodogram';
@@ -122,10 +132,19 @@ class FrequencyOffsetStage implements Stage<'symbols', 'symbols', FrequencyOffse
     const padding = o.padding ?? 4;
     if (!Number.isInteger(padding) || padding < 1 || padding > 16 || (padding & (padding - 1)) !== 0)
       throw new OptionError(NAME, 'padding', '1, 2, 4, 8 or 16', padding);
+    const known = o.freqOffsetHz;
+    if (known !== undefined) {
+      if (typeof known !== 'number' || !Number.isFinite(known))
+        throw new OptionError(NAME, 'freqOffsetHz', 'a finite offset in Hz', known);
+      if (o.trackingSymbols !== undefined || o.estimateSymbols !== undefined)
+        throw new OptionError(NAME, 'freqOffsetHz', 'no estimate or tracking span with a known offset', known);
+    }
     this.method = method;
     this.tracking = o.trackingSymbols !== undefined;
     this.span = o.trackingSymbols ?? estimateSymbols;
     this.padding = padding;
+    this.known = known ?? null;
+    this.reset();
   }
 
   process(block: FieldBlock<'symbols'>): FieldBlock<'symbols'> {
@@ -175,6 +194,10 @@ class FrequencyOffsetStage implements Stage<'symbols', 'symbols', FrequencyOffse
     this.delivered = 0;
     this.track = [];
     this.sampleRate = Number.NaN;
+    if (this.known !== null) {
+      this.current = this.known;
+      this.track.push({ startSymbol: 0, symbols: 0, freqOffsetHz: this.known });
+    }
   }
 
   diagnostics(): FrequencyOffsetDiagnostics {
@@ -192,6 +215,7 @@ class FrequencyOffsetStage implements Stage<'symbols', 'symbols', FrequencyOffse
   }
 
   describe(): StageRecord {
+    if (this.known !== null) return { stage: NAME, options: { freqOffsetHz: this.known } };
     const options: Record<string, string | number> = { method: this.method, padding: this.padding };
     if (this.tracking) options.trackingSymbols = this.span;
     else options.estimateSymbols = this.span;

@@ -152,7 +152,8 @@ export interface EqualizerOptions {
   };
   /**
    * Convergence verdict over the last `window` output symbols (default
-   * 8192): converged when the taps are not singular, the outputs each
+   * 8192): converged when the taps are not singular and, for blind
+   * adaptation (not with `training`), the outputs each
    * carry one source ({@link outputDependence} at lags up to 2 symbols at
    * most `dependence`, default 0.15: a polarization mix beyond 17° or an
    * output sampled between symbols fails at any SNR, while separated outputs
@@ -516,7 +517,9 @@ class ButterflyEqualizer implements Stage<'twoSps', 'symbols', EqualizerDiagnost
     const sepX = outputSeparation(wx, wn, this.kurtosis);
     const sepY = outputSeparation(wy, wn, this.kurtosis);
     const dependence = outputDependence(wx, wy, wn, this.kurtosis, DEPENDENCE_LAGS);
-    const converged = !singular && this.separated(sepX, sepY, dependence);
+    // Trained outputs are pulled onto their own targets: the fourth-order verdicts are for blind
+    // adaptation, and they cannot tell anything for a near-Gaussian constellation (a shaped one).
+    const converged = !singular && (o.training !== null || this.separated(sepX, sepY, dependence));
     const filter = (offset: number) => this.taps.slice(offset * L, offset * L + 2 * L) as ComplexArray;
     const phases: EqualizerPhase[] = [];
     if (o.pre > 0) phases.push({ rule: 'cma', fromSymbol: 0, orthogonalY: o.orthogonalStart });

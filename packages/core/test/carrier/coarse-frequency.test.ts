@@ -30,4 +30,41 @@ describe('coarse frequency-offset removal', () => {
   it('rejects a span shorter than 1,024 samples', () => {
     expect(() => coarseFrequencyShift({ estimateSamples: 100 })).toThrow(OptionError);
   });
+
+  it('removes a known offset as given, sample by sample from the start of the stream, holding nothing back', () => {
+    const f = 1.25e9;
+    const fs = 64e9;
+    const n = 3000;
+    const x = new Float64Array(2 * n);
+    const y = new Float64Array(2 * n);
+    for (let k = 0; k < n; k++) {
+      // A pure tone at f on x, its conjugate on y: removing f leaves x at DC and y at −2f.
+      x[2 * k] = Math.cos((2 * Math.PI * f * k) / fs);
+      x[2 * k + 1] = Math.sin((2 * Math.PI * f * k) / fs);
+      y[2 * k] = x[2 * k];
+      y[2 * k + 1] = -x[2 * k + 1];
+    }
+    const stage = coarseFrequencyShift({ freqOffsetHz: f });
+    const first = stage.process({
+      domain: 'twoSps',
+      x: x.subarray(0, 2000),
+      y: y.subarray(0, 2000),
+      sampleRate: fs,
+      samplesPerSymbol: 2,
+    });
+    const second = stage.process({
+      domain: 'twoSps',
+      x: x.subarray(2000),
+      y: y.subarray(2000),
+      sampleRate: fs,
+      samplesPerSymbol: 2,
+    });
+    expect(first.x.length + second.x.length).toBe(2 * n);
+    expect(stage.flush()).toBeNull();
+    for (const b of [first, second]) for (let k = 0; k < b.x.length; k += 2) expect(Math.abs(b.x[k] - 1)).toBeLessThan(1e-9);
+    expect(stage.diagnostics().freqOffsetHz).toBe(f);
+    expect(stage.describe().options).toEqual({ domain: 'twoSps', freqOffsetHz: f });
+    expect(() => coarseFrequencyShift({ freqOffsetHz: Number.NaN })).toThrow(/freqOffsetHz/);
+    expect(() => coarseFrequencyShift({ freqOffsetHz: 1e9, estimateSamples: 4096 })).toThrow(/estimateSamples/);
+  });
 });

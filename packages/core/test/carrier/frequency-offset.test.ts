@@ -148,5 +148,19 @@ describe('frequency-offset stage', () => {
     expect(() => frequencyOffsetRecovery({ trackingSymbols: 1024, estimateSymbols: 1024 })).toThrow(/not both/);
     expect(() => frequencyOffsetRecovery({ estimateSymbols: 4 })).toThrow(/estimateSymbols/);
     expect(() => frequencyOffsetRecovery({ padding: 5 })).toThrow(/padding/);
+    expect(() => frequencyOffsetRecovery({ freqOffsetHz: Number.POSITIVE_INFINITY })).toThrow(/freqOffsetHz/);
+    expect(() => frequencyOffsetRecovery({ freqOffsetHz: 0, estimateSymbols: 1024 })).toThrow(/freqOffsetHz/);
+  });
+
+  it('with a known offset of 0, passes the symbols through from the first block, estimating nothing', () => {
+    const x = new Float64Array([1, 2, 3, 4, 5, 6]);
+    const y = new Float64Array([-1, 0.5, 0.25, 2, 0, 1]);
+    const stage = frequencyOffsetRecovery({ freqOffsetHz: 0 });
+    const out = stage.process({ domain: 'symbols', x, y, sampleRate: 32e9, samplesPerSymbol: 1 });
+    expect(Array.from(out.x)).toEqual(Array.from(x));
+    expect(Array.from(out.y)).toEqual(Array.from(y));
+    expect(stage.flush()).toBeNull();
+    expect(stage.diagnostics().freqOffsetHz).toBe(0);
+    expect(stage.describe().options).toEqual({ freqOffsetHz: 0 });
   });
 });

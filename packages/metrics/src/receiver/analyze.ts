@@ -3,6 +3,7 @@ import {
   type ChannelSpectra,
   ChannelSpectraEstimator,
   type CycleSlip,
+  checkModulation,
   constellation,
   type DualPol,
   DualPolBuffer,
@@ -28,6 +29,7 @@ import { ConstellationDensity, type ConstellationHistogram } from '../density/co
 import { DEFAULT_FIT_SYMBOLS, type Measurement, MeasurementStream, ReferenceNotFoundError } from '../measure/measure.js';
 import { snrForGmi } from '../theory/awgn-information.js';
 import { snrForBer, theoryBer } from '../theory/qam-ber.js';
+import { AcquisitionError, acquireWithReference, type ReferenceAcquisition } from './reference-acquisition.js';
 
 /** Options of {@link analyzeCapture}. */
 export interface AnalyzeOptions {
@@ -68,14 +70,22 @@ export interface AnalyzeOptions {
    */
   readonly inputHasher?: () => InputHasher;
   /**
-   * How the 2×2 equalizer adapts: 'blind' (the default: CMA and RDE, as a
-   * receiver in the field must) or 'data-aided': a blind pass first finds
-   * which transmitted symbol each output carries, then the capture runs
-   * again with the equalizer trained on those symbols ({@link dataAidedRule}),
-   * the best case that blind processing is compared against. The second
-   * pass's figures are reported, with `equalizerTraining` saying so. Needs
-   * `blocks` that can be read twice (an array, or an iterable that starts
-   * over on each iteration), and costs two passes.
+   * How the 2×2 equalizer adapts: 'blind' (CMA and RDE, as a receiver in
+   * the field must; the default for uniform formats) or 'data-aided': a
+   * blind pass first finds which transmitted symbol each output carries,
+   * then the capture runs again with the equalizer trained on those symbols
+   * ({@link dataAidedRule}), the best case that blind processing is
+   * compared against. The second pass's figures are reported, with
+   * `equalizerTraining` saying so. Needs `blocks` that can be read twice
+   * (an array, or an iterable that starts over on each iteration), and
+   * costs two passes.
+   *
+   * Shaped formats default to 'data-aided', placed without a blind pass:
+   * nearly Gaussian, they give CMA and RDE, and the fourth-power offset
+   * estimates, too little to start on, so the reference and the carrier
+   * offset are found against the reference on the start of the capture
+   * ({@link acquireWithReference}), and the frequency stages remove that
+   * offset instead of estimating one.
    */
   readonly equalizerTraining?: EqualizerTrainingMode;
 }
@@ -232,7 +242,11 @@ export function analyzeCapture<R extends ReplacedStages = NoReplacement>(
   reference: DualPol | CompactReference,
   options: AnalyzeOptions = {},
 ): AnalysisResult<ReceiverDiagnostics<StagesWith<R>>> {
-  const training = resolveAnalyzeOptions(options).equalizerTraining;
+  const shaped = constellation(checkModulation('analyze', 'modulation', settings.modulation)).shaped;
+  const training = resolveAnalyzeOptions({
+    ...options,
+    equalizerTraining: options.equalizerTraining ?? (shaped ? 'data-aided' : 'blind'),
+  }).equalizerTraining;
   if (training === 'blind') return analyzeOnce(blocks, settings, reference, options, 'blind');
   // An iterator is its own iterable: it would give nothing the second time.
   if ((blocks[Symbol.iterator]() as unknown) === blocks)
@@ -242,6 +256,7 @@ export function analyzeCapture<R extends ReplacedStages = NoReplacement>(
       "blocks that can be read twice for 'data-aided' (an array, or an iterable that starts over)",
       'a one-pass iterator',
     );
+  if (shaped) return analyzeAcquired(blocks, settings, reference, options);
   // The first pass only finds the alignment: nothing of it is kept or handed out.
   const firstPass = { ...options, keepSymbols: false, plotData: false, onSymbols: undefined };
   const blind = analyzeOnce(blocks, settings, reference, firstPass, 'blind');
@@ -262,6 +277,47 @@ export function analyzeCapture<R extends ReplacedStages = NoReplacement>(
   };
   const equalizer = { ...settings.options?.equalizer, training: { x: target('x'), y: target('y') } };
   return analyzeOnce(blocks, { ...settings, options: { ...settings.options, equalizer } }, reference, options, 'data-aided');
+}
+
+/**
+ * The data-aided analysis of a shaped format: the reference placed and the
+ * offset found against it ({@link acquireWithReference}), then one pass
+ * with the equalizer trained on the reference and the offset removed as
+ * found. When the reference cannot be placed, the blind analysis runs
+ * instead and its failure says why both failed.
+ */
+function analyzeAcquired<R extends ReplacedStages>(
+  blocks: Iterable<ChannelBlock>,
+  settings: ReceiverSettings<R>,
+  reference: DualPol | CompactReference,
+  options: AnalyzeOptions,
+): AnalysisResult<ReceiverDiagnostics<StagesWith<R>>> {
+  let acquired: ReferenceAcquisition;
+  try {
+    acquired = acquireWithReference(blocks, settings as ReceiverSettings<ReplacedStages>, reference);
+  } catch (e) {
+    if (!(e instanceof AcquisitionError)) throw e;
+    const blind = analyzeOnce(blocks, settings, reference, { ...options, equalizerTraining: 'blind' }, 'blind');
+    if (blind.ok) return blind;
+    const failure = blind.failure as AnalysisFailure;
+    return { ...blind, failure: { ...failure, reason: `${e.message}; the blind analysis failed too: ${failure.reason}` } };
+  }
+  const target = (p: 'x' | 'y') => ({
+    symbols: isCompactReference(reference) ? referencePoints(reference, p) : reference[p],
+    delay: acquired.delays[p],
+    conjugated: false,
+  });
+  const o = settings.options ?? {};
+  const trained = {
+    ...settings,
+    options: {
+      ...o,
+      coarseFrequency: { freqOffsetHz: acquired.freqOffsetHz },
+      frequency: { freqOffsetHz: 0 },
+      equalizer: { ...o.equalizer, training: { x: target('x'), y: target('y') } },
+    },
+  };
+  return analyzeOnce(blocks, trained, reference, { ...options, equalizerTraining: 'data-aided' }, 'data-aided');
 }
 
 /** The settings of an analysis with every default filled in (the reproducibility record's `analysis`). */
@@ -396,7 +452,7 @@ function analyzeOnce<R extends ReplacedStages>(
       else throw e;
     }
   }
-  const eq = equalizerVerdict(diagnostics.equalizer, m);
+  const eq = equalizerVerdict(diagnostics.equalizer, m, equalizerTraining);
   if (eq) return failed(eq);
   if (tooShort) {
     return failed({
@@ -452,9 +508,12 @@ const UNMEASURED_SEPARATION = 0.7;
  * (s/(1 + s))², at least half of which is required, so that the test
  * follows the operating point (a correct output at 5 dB has σ ≈ 0.58)
  * instead of a fixed threshold; when they could not be measured, against
- * {@link UNMEASURED_SEPARATION}.
+ * {@link UNMEASURED_SEPARATION}. A trained equalizer is judged by its
+ * singularity alone: its outputs are pulled onto their own targets, the
+ * measurement against the reference tells the rest, and the separation
+ * index says nothing for a near-Gaussian (shaped) constellation.
  */
-function equalizerVerdict(diagnostics: unknown, m: Measurement | null): AnalysisFailure | null {
+function equalizerVerdict(diagnostics: unknown, m: Measurement | null, training: EqualizerTrainingMode): AnalysisFailure | null {
   const d = equalizerReport(diagnostics);
   if (d === null) return null; // a replaced equalizer that reports no verdict
   const c = d.convergence;
@@ -472,6 +531,7 @@ function equalizerVerdict(diagnostics: unknown, m: Measurement | null): Analysis
         `separation index x ${c.separationX.toFixed(3)}, y ${c.separationY.toFixed(3)} (at least ${c.threshold}) (${c.criterion})`,
     };
   }
+  if (training === 'data-aided') return null;
   if (m === null) {
     if (c.separationX >= UNMEASURED_SEPARATION && c.separationY >= UNMEASURED_SEPARATION) return null;
     return {
