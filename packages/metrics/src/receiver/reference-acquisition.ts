@@ -41,7 +41,10 @@ export const ACQUISITION_SYMBOLS = 16384;
  */
 export const MIN_ACQUISITION_PEAK = 8;
 
-/** Why {@link acquireWithReference} could not place the reference. */
+/**
+ * Why {@link acquireWithReference} could not place the reference.
+ * @example try { acquireWithReference(blocks, settings, ref); } catch (e) { if (e instanceof AcquisitionError) console.log(e.message); }
+ */
 export class AcquisitionError extends Error {
   constructor(message: string) {
     super(message);
