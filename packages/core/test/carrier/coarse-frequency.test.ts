@@ -1,5 +1,12 @@
 import { describe, expect, it } from 'vitest';
-import { coarseFrequencyShift, type FieldBlock, OptionError, simulate } from '../../src/index.js';
+import {
+  type ComplexArray,
+  coarseFrequencyShift,
+  complexArray,
+  type FieldBlock,
+  OptionError,
+  simulate,
+} from '../../src/index.js';
 
 describe('coarse frequency-offset removal', () => {
   // Fourth-power periodogram (Selmi, Jaouën, Ciblat, ECOC 2009) applied to the
@@ -35,8 +42,8 @@ describe('coarse frequency-offset removal', () => {
     const f = 1.25e9;
     const fs = 64e9;
     const n = 3000;
-    const x = new Float64Array(2 * n);
-    const y = new Float64Array(2 * n);
+    const x = complexArray(n);
+    const y = complexArray(n);
     for (let k = 0; k < n; k++) {
       // A pure tone at f on x, its conjugate on y: removing f leaves x at DC and y at −2f.
       x[2 * k] = Math.cos((2 * Math.PI * f * k) / fs);
@@ -47,15 +54,15 @@ describe('coarse frequency-offset removal', () => {
     const stage = coarseFrequencyShift({ freqOffsetHz: f });
     const first = stage.process({
       domain: 'twoSps',
-      x: x.subarray(0, 2000),
-      y: y.subarray(0, 2000),
+      x: x.subarray(0, 2000) as ComplexArray,
+      y: y.subarray(0, 2000) as ComplexArray,
       sampleRate: fs,
       samplesPerSymbol: 2,
     });
     const second = stage.process({
       domain: 'twoSps',
-      x: x.subarray(2000),
-      y: y.subarray(2000),
+      x: x.subarray(2000) as ComplexArray,
+      y: y.subarray(2000) as ComplexArray,
       sampleRate: fs,
       samplesPerSymbol: 2,
     });

@@ -153,8 +153,8 @@ describe('frequency-offset stage', () => {
   });
 
   it('with a known offset of 0, passes the symbols through from the first block, estimating nothing', () => {
-    const x = new Float64Array([1, 2, 3, 4, 5, 6]);
-    const y = new Float64Array([-1, 0.5, 0.25, 2, 0, 1]);
+    const x = Float64Array.from([1, 2, 3, 4, 5, 6]) as ComplexArray;
+    const y = Float64Array.from([-1, 0.5, 0.25, 2, 0, 1]) as ComplexArray;
     const stage = frequencyOffsetRecovery({ freqOffsetHz: 0 });
     const out = stage.process({ domain: 'symbols', x, y, sampleRate: 32e9, samplesPerSymbol: 1 });
     expect(Array.from(out.x)).toEqual(Array.from(x));

@@ -1,4 +1,4 @@
-import { type DualPol, simulate } from '@intradyne/core';
+import { type ComplexArray, type DualPol, simulate } from '@intradyne/core';
 import { describe, expect, it } from 'vitest';
 import { AcquisitionError, acquireWithReference, MIN_ACQUISITION_PEAK } from '../../src/index.js';
 
@@ -40,7 +40,7 @@ function shifted(ref: DualPol, shift: number): DualPol {
     }
     return out;
   };
-  return { x: turn(ref.x), y: turn(ref.y) };
+  return { x: turn(ref.x) as ComplexArray, y: turn(ref.y) as ComplexArray };
 }
 
 describe('acquisition against the reference', () => {
