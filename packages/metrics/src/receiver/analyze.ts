@@ -305,7 +305,7 @@ function analyzeAcquired<R extends ReplacedStages>(
   const target = (p: 'x' | 'y') => ({
     symbols: isCompactReference(reference) ? referencePoints(reference, p) : reference[p],
     delay: acquired.delays[p],
-    conjugated: false,
+    conjugated: acquired.conjugated,
   });
   const o = settings.options ?? {};
   const trained = {

@@ -27,6 +27,8 @@ export interface ReferenceAcquisition {
   readonly delays: Readonly<Record<'x' | 'y', number>>;
   /** Per reference polarization, the power correlation's peak over its rms at all other delays. */
   readonly peakToRms: Readonly<Record<'x' | 'y', number>>;
+  /** True when the capture carries the conjugate of the reference (I and Q swapped at the receiver). */
+  readonly conjugated: boolean;
   /** Symbols the acquisition was made on. */
   readonly symbols: number;
 }
@@ -76,7 +78,10 @@ export class AcquisitionError extends Error {
  * whatever the polarization state J; the offset is the peak of the sum of
  * their periodograms (zero-padded four times, the peak placed by a parabola
  * through its neighbours), data-aided and polarization independent. Range
- * ±Rs/2; resolution well under the 1/K of one bin.
+ * ±Rs/2; resolution well under the 1/K of one bin. A capture with I and Q
+ * swapped carries the conjugate of the field (times j): its products with
+ * s_b instead of s_b* hold the tone, so both are formed and the stronger
+ * peak says which, and at what frequency the capture's field turns.
  *
  * The clock recovery of a second run places its symbol instants from the
  * same samples, with the offset then removed; the delays are taken again on
@@ -101,11 +106,8 @@ export function acquireWithReference(
     x: powerDelay(first, points.x),
     y: powerDelay(first, points.y),
   };
-  const freqOffsetHz =
-    offsetAgainstReference(first, points, {
-      x: firstDelays.x.delay,
-      y: firstDelays.y.delay,
-    }) * settings.symbolRate;
+  const firstOffset = offsetAgainstReference(first, points, { x: firstDelays.x.delay, y: firstDelays.y.delay });
+  const freqOffsetHz = firstOffset.cyclesPerSymbol * settings.symbolRate;
   const second = symbolInstants(blocks, settings, freqOffsetHz);
   const x = powerDelay(second, points.x);
   const y = powerDelay(second, points.y);
@@ -122,6 +124,7 @@ export function acquireWithReference(
     freqOffsetHz,
     delays: { x: x.delay, y: y.delay },
     peakToRms: { x: x.peakToRms, y: y.peakToRms },
+    conjugated: firstOffset.conjugated,
     symbols: second.count,
   };
 }
@@ -212,16 +215,34 @@ function powerDelay(r: Instants, ref: ComplexArray): { delay: number; peakToRms:
   return { delay: (nt - best) % nt, peakToRms: others > 0 ? peak / Math.sqrt(others) : Number.POSITIVE_INFINITY };
 }
 
-/** The carrier offset in cycles per symbol from the four data-aided products (see {@link acquireWithReference}). */
+/**
+ * The carrier offset in cycles per symbol from the four data-aided products
+ * (see {@link acquireWithReference}), with the reference as sent or
+ * conjugated, whichever shows the stronger tone.
+ */
 function offsetAgainstReference(
   r: Instants,
   ref: Readonly<Record<'x' | 'y', ComplexArray>>,
   delays: Record<'x' | 'y', number>,
-): number {
+): { cyclesPerSymbol: number; conjugated: boolean } {
+  const straight = productPeak(r, ref, delays, false);
+  const conjugate = productPeak(r, ref, delays, true);
+  const best = conjugate.peak > straight.peak ? conjugate : straight;
+  return { cyclesPerSymbol: best.cyclesPerSymbol, conjugated: conjugate.peak > straight.peak };
+}
+
+/** The peak of the summed periodograms of rₐ·s_b* (or rₐ·s_b when `conjugate`): its height and frequency. */
+function productPeak(
+  r: Instants,
+  ref: Readonly<Record<'x' | 'y', ComplexArray>>,
+  delays: Record<'x' | 'y', number>,
+  conjugate: boolean,
+): { peak: number; cyclesPerSymbol: number } {
   const k = r.count;
   const size = 4 * nextPowerOfTwo(k);
   const spectrum = new Float64Array(size);
   const u = complexArray(size);
+  const sign = conjugate ? -1 : 1;
   for (const received of [r.x, r.y]) {
     for (const p of ['x', 'y'] as const) {
       const s = ref[p];
@@ -229,8 +250,9 @@ function offsetAgainstReference(
       u.fill(0);
       for (let i = 0; i < k; i++) {
         const m = (((i - delays[p]) % nt) + nt) % nt;
+        // s* as sent, or s itself for a conjugated capture: (sr − j·sign·si)
         const sr = s[2 * m];
-        const si = s[2 * m + 1];
+        const si = sign * s[2 * m + 1];
         u[2 * i] = received[2 * i] * sr + received[2 * i + 1] * si;
         u[2 * i + 1] = received[2 * i + 1] * sr - received[2 * i] * si;
       }
@@ -247,7 +269,7 @@ function offsetAgainstReference(
   const shift = curvature < 0 ? (0.5 * (below - above)) / curvature : 0;
   let bin = best + shift;
   if (bin >= size / 2) bin -= size;
-  return bin / size;
+  return { peak: at, cyclesPerSymbol: bin / size };
 }
 
 function power(z: ComplexArray, i: number): number {

@@ -77,4 +77,16 @@ describe('acquisition against the reference', () => {
     const other = capture(76, 1e9);
     expect(() => acquireWithReference(blocks(cap), settings(cap), other.reference)).toThrow(AcquisitionError);
   });
+
+  it('tells a capture with I and Q swapped, and the frequency its field turns at', () => {
+    const cap = capture(77, 1.2e9);
+    const straight = acquireWithReference(blocks(cap), settings(cap), cap.reference);
+    expect(straight.conjugated).toBe(false);
+    // Q in place of I: the field xq + j·xi = j·conj(xi + j·xq), which turns the other way.
+    const { xi, xq, yi, yq } = cap.channels;
+    const swapped = [{ domain: 'channels' as const, ...cap.channels, xi: xq, xq: xi, yi: yq, yq: yi, samplesPerSymbol: 2 }];
+    const a = acquireWithReference(swapped, settings(cap), cap.reference);
+    expect(a.conjugated).toBe(true);
+    expect(Math.abs(a.freqOffsetHz + 1.2e9)).toBeLessThan(0.5e6);
+  });
 });
