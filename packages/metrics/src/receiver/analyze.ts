@@ -300,7 +300,15 @@ function analyzeAcquired<R extends ReplacedStages>(
     const blind = analyzeOnce(blocks, settings, reference, { ...options, equalizerTraining: 'blind' }, 'blind');
     if (blind.ok) return blind;
     const failure = blind.failure as AnalysisFailure;
-    return { ...blind, failure: { ...failure, reason: `${e.message}; the blind analysis failed too: ${failure.reason}` } };
+    // The blind dispersion estimate reads the field's fourth moment, which a nearly Gaussian signal does not move.
+    const guessed = settings.dispersionPsPerNm === undefined && settings.estimateDispersion !== false;
+    const hint = guessed
+      ? ' (the dispersion was estimated blindly, which a shaped signal does not allow: state it as dispersionPsPerNm)'
+      : '';
+    return {
+      ...blind,
+      failure: { ...failure, reason: `${e.message}${hint}; the blind analysis failed too: ${failure.reason}` },
+    };
   }
   const target = (p: 'x' | 'y') => ({
     symbols: isCompactReference(reference) ? referencePoints(reference, p) : reference[p],

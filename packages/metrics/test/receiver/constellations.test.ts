@@ -90,4 +90,24 @@ describe('default receiver on the added formats, against AWGN theory', () => {
       console.log(`${modulation}: GMI ${result.measurement!.gmi.toFixed(4)}, penalty ${penalty.toFixed(3)} dB`);
     expect(penalty).toBeLessThan(0.5); // measured 0.15 dB (0.13–0.17 over four seeds)
   });
+
+  it('a shaped capture with dispersion nobody stated: a failure that asks for the dispersion, not a wrong number', () => {
+    // The blind estimate minimizes the field's fourth moment, which a nearly Gaussian signal barely moves.
+    const modulation: ModulationName = 'ps-64qam:entropy=4.5';
+    const cap = simulate({
+      seed: 421,
+      modulation,
+      symbols: 1 << 16,
+      symbolRate: 32e9,
+      samplesPerSymbol: 2,
+      channel: { sop: 'random', esN0Db: 14, linewidthHz: 100e3, freqOffsetHz: 1e9, dispersionPsPerNm: 1360 },
+    });
+    const block = { domain: 'channels' as const, ...cap.channels, samplesPerSymbol: cap.samplesPerSymbol };
+    const settings = { modulation, symbolRate: 32e9, sampleRate: cap.channels.sampleRate };
+    const guessed = analyzeCapture([block], settings, cap.reference);
+    expect(guessed.ok).toBe(false);
+    expect(guessed.failure?.reason).toMatch(/state it as dispersionPsPerNm/);
+    const stated = analyzeCapture([block], { ...settings, dispersionPsPerNm: 1360 }, cap.reference);
+    expect(stated.ok, stated.failure?.reason).toBe(true);
+  });
 });
