@@ -343,7 +343,7 @@ export function defaultReceiver<R extends ReplacedStages = NoReplacement>(
     modulation: s.modulation,
     halfWindow: 'auto' as const,
     polarizations: 'joint' as const,
-    ...(dense ? { variant: 'coarse-fine' as const } : {}),
+    ...(dense && s.phaseRecovery === 'blind-phase-search' ? { variant: 'coarse-fine' as const } : {}),
     ...o.phase,
   };
   // QAM: a decision-directed equalizer after the carrier recovery removes

@@ -36,6 +36,9 @@ export interface ReferenceAcquisition {
 /** Symbols of the start of the capture the acquisition is made on. */
 export const ACQUISITION_SYMBOLS = 16384;
 
+/** Fewest symbols the acquisition is tried on. */
+export const MIN_ACQUISITION_SYMBOLS = 1024;
+
 /**
  * The least peak-to-rms of the power correlation trusted: the rms of a
  * correlation of noise is its typical size, and the largest of Nt of them
@@ -89,7 +92,7 @@ export class AcquisitionError extends Error {
  * @param blocks the capture's channel blocks (read from the start, as far as needed, twice)
  * @param settings the receiver's settings (its own `replace` is not used here)
  * @param reference the transmitted symbols or labels, periodic
- * @throws AcquisitionError when the power correlation shows no clear peak (the reference is not in the capture)
+ * @throws AcquisitionError when the capture gives too few symbols, or the power correlation shows no clear peak (the reference is not in the capture)
  * @example const a = acquireWithReference(blocks, settings, reference); a.freqOffsetHz
  */
 export function acquireWithReference(
@@ -102,6 +105,10 @@ export function acquireWithReference(
     y: isCompactReference(reference) ? referencePoints(reference, 'y') : reference.y,
   };
   const first = symbolInstants(blocks, settings, null);
+  if (first.count < MIN_ACQUISITION_SYMBOLS)
+    throw new AcquisitionError(
+      `the capture gave ${first.count} symbols to place the reference on (at least ${MIN_ACQUISITION_SYMBOLS} needed)`,
+    );
   const firstDelays = {
     x: powerDelay(first, points.x),
     y: powerDelay(first, points.y),
@@ -212,7 +219,8 @@ function powerDelay(r: Instants, ref: ComplexArray): { delay: number; peakToRms:
   }
   const others = nt > 1 ? (sum2 - peak * peak) / (nt - 1) : 0;
   // Received symbol k carries reference symbol k + L, that is k − D with D = −L mod Nt.
-  return { delay: (nt - best) % nt, peakToRms: others > 0 ? peak / Math.sqrt(others) : Number.POSITIVE_INFINITY };
+  // A correlation that is zero everywhere else (a reference of one symbol) tells nothing: 0.
+  return { delay: (nt - best) % nt, peakToRms: others > 0 ? peak / Math.sqrt(others) : 0 };
 }
 
 /**

@@ -72,10 +72,23 @@ describe('acquisition against the reference', () => {
     expect(base.delays.x).toBe(base.delays.y);
   });
 
-  it('says so when the reference is not in the capture', () => {
+  it('says so when the reference is not in the capture, or the capture is too short to tell', () => {
     const cap = capture(75, 1e9);
     const other = capture(76, 1e9);
     expect(() => acquireWithReference(blocks(cap), settings(cap), other.reference)).toThrow(AcquisitionError);
+    const c = cap.channels;
+    const short = [
+      {
+        domain: 'channels' as const,
+        ...c,
+        xi: c.xi.slice(0, 600),
+        xq: c.xq.slice(0, 600),
+        yi: c.yi.slice(0, 600),
+        yq: c.yq.slice(0, 600),
+        samplesPerSymbol: 2,
+      },
+    ];
+    expect(() => acquireWithReference(short, settings(cap), cap.reference)).toThrow(/symbols to place the reference on/);
   });
 
   it('tells a capture with I and Q swapped, and the frequency its field turns at', () => {
