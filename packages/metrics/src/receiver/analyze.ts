@@ -247,7 +247,13 @@ export function analyzeCapture<R extends ReplacedStages = NoReplacement>(
     ...options,
     equalizerTraining: options.equalizerTraining ?? (shaped ? 'data-aided' : 'blind'),
   }).equalizerTraining;
-  if (training === 'blind') return analyzeOnce(blocks, settings, reference, options, 'blind');
+  if (training === 'blind') {
+    const blind = analyzeOnce(blocks, settings, reference, options, 'blind');
+    if (!shaped || blind.ok || blind.failure?.check !== 'equalizer') return blind;
+    const failure = blind.failure;
+    const hint = ' (a shaped signal is nearly Gaussian, too little for a blind equalizer: its default is data-aided)';
+    return { ...blind, failure: { ...failure, reason: `${failure.reason}${hint}` } };
+  }
   // An iterator is its own iterable: it would give nothing the second time.
   if ((blocks[Symbol.iterator]() as unknown) === blocks)
     throw new OptionError(

@@ -91,7 +91,7 @@ describe('default receiver on the added formats, against AWGN theory', () => {
     expect(penalty).toBeLessThan(0.5); // measured 0.15 dB (0.13–0.17 over four seeds)
   });
 
-  it('a shaped capture with dispersion nobody stated: a failure that asks for the dispersion, not a wrong number', () => {
+  it('a shaped capture with dispersion nobody stated, or analysed blind: a failure that says what would work, not a wrong number', () => {
     // The blind estimate minimizes the field's fourth moment, which a nearly Gaussian signal barely moves.
     const modulation: ModulationName = 'ps-64qam:entropy=4.5';
     const cap = simulate({
@@ -109,5 +109,11 @@ describe('default receiver on the added formats, against AWGN theory', () => {
     expect(guessed.failure?.reason).toMatch(/state it as dispersionPsPerNm/);
     const stated = analyzeCapture([block], { ...settings, dispersionPsPerNm: 1360 }, cap.reference);
     expect(stated.ok, stated.failure?.reason).toBe(true);
+    // Asked to run blind, the analysis fails at its equalizer and says what would work.
+    const blind = analyzeCapture([block], { ...settings, dispersionPsPerNm: 1360 }, cap.reference, {
+      equalizerTraining: 'blind',
+    });
+    expect(blind.ok).toBe(false);
+    expect(blind.failure?.reason).toMatch(/its default is data-aided/);
   });
 });
