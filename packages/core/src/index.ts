@@ -71,6 +71,7 @@ export * from './dsp/fft.js';
 export { besselI0, kaiserBeta, kaiserOrder, kaiserWindow } from './dsp/kaiser.js';
 export * from './dsp/rrc.js';
 export * from './dsp/spectrum-summary.js';
+export * from './dsp/strongest-tone.js';
 export * from './dsp/welch.js';
 export * from './equalizer/butterfly-kernel.js';
 export * from './equalizer/cma.js';

@@ -1,4 +1,4 @@
-import { type Constellation, nearestLabel } from '../modulation/constellation.js';
+import { type Constellation, nearestLabel, nearestPoint } from '../modulation/constellation.js';
 import type { ComplexArray } from '../signal/complex.js';
 import { type PairPhaseKernel, runKernel } from './phase-kernel.js';
 import { QUARTER_TURN, unwrapPhase, wrapAngle } from './phase-unwrap.js';
@@ -250,14 +250,12 @@ export class CoarseFinePhaseKernel implements PairPhaseKernel {
   private readonly uIm: Float64Array;
   private sumRe = 0;
   private sumIm = 0;
-  /** The product of the last {@link addProduct}, kept in fields so that `push` does not allocate. */
+  /** The product of the last {@link product}, and its decision: fields, so that `push` does not allocate. */
+  private readonly decision = new Float64Array(2);
   private productRe = 0;
   private productIm = 0;
   private pushed = 0;
   private centres = 0;
-  private readonly scale: number;
-  private readonly inv: number;
-  private readonly top: number;
   private readonly n2: number;
   private readonly c: Constellation;
 
@@ -276,9 +274,6 @@ export class CoarseFinePhaseKernel implements PairPhaseKernel {
     this.coarsePhase = new Float64Array(this.n2 + 1);
     this.uRe = new Float64Array(this.len2);
     this.uIm = new Float64Array(this.len2);
-    this.scale = c.scale;
-    this.inv = 1 / c.scale;
-    this.top = c.levelsPerAxis - 1;
   }
 
   push(re: number, im: number, present: boolean): number {
@@ -339,16 +334,9 @@ export class CoarseFinePhaseKernel implements PairPhaseKernel {
 
   /** u = r·â*, â the decision on r·e^(−jθ¹) (cs = cos θ¹, sn = sin θ¹), into productRe/productIm. */
   private product(rr: number, ri: number, cs: number, sn: number): void {
-    let ar: number;
-    let ai: number;
-    if (this.c.square) {
-      ar = slice(rr * cs + ri * sn, this.scale, this.inv, this.top);
-      ai = slice(ri * cs - rr * sn, this.scale, this.inv, this.top);
-    } else {
-      const l = nearestLabel(this.c, rr * cs + ri * sn, ri * cs - rr * sn);
-      ar = this.c.points[2 * l];
-      ai = this.c.points[2 * l + 1];
-    }
+    nearestPoint(this.c, rr * cs + ri * sn, ri * cs - rr * sn, this.decision);
+    const ar = this.decision[0];
+    const ai = this.decision[1];
     this.productRe = rr * ar + ri * ai;
     this.productIm = ri * ar - rr * ai;
   }
@@ -392,14 +380,6 @@ function pointDistance(c: Constellation, ur: number, ui: number): number {
   const dr = ur - c.points[2 * k];
   const di = ui - c.points[2 * k + 1];
   return dr * dr + di * di;
-}
-
-/** Nearest level of one axis of square QAM: (2i − (L − 1))·scale, i = clamp(round((v/scale + L − 1)/2)). */
-function slice(v: number, scale: number, inv: number, top: number): number {
-  let i = Math.round((v * inv + top) * 0.5);
-  if (i < 0) i = 0;
-  else if (i > top) i = top;
-  return (2 * i - top) * scale;
 }
 
 /**

@@ -1,4 +1,4 @@
-import { fft, nextPowerOfTwo } from '../dsp/fft.js';
+import { strongestTone, type WeightedSequence } from '../dsp/strongest-tone.js';
 import { type ComplexArray, complexArray } from '../signal/complex.js';
 
 /** Options of {@link estimateOffsetPeriodogram}. */
@@ -67,57 +67,12 @@ export function estimateOffsetPeriodogram(
     throw new RangeError(`estimateOffsetPeriodogram: expected a padding of 1, 2, 4, 8 or 16, received ${padding}`);
 
   const pols = y ? fourthOrderProducts(x, y) : [{ z: fourthPower(x), weight: 1 }];
-  const size = nextPowerOfTwo(n) * padding;
-  const power = new Float64Array(size);
-  const padded = complexArray(size);
-  for (const { z, weight } of pols) {
-    padded.fill(0);
-    padded.set(z);
-    const Z = fft(padded);
-    for (let k = 0; k < size; k++) power[k] += weight * (Z[2 * k] * Z[2 * k] + Z[2 * k + 1] * Z[2 * k + 1]);
-  }
-  let peak = 0;
-  for (let k = 1; k < size; k++) if (power[k] > power[peak]) peak = k;
-  const nuPeak = (peak < size / 2 ? peak : peak - size) / size;
-
-  // Golden-section search of the continuous periodogram between the neighbouring bins.
-  const g = (Math.sqrt(5) - 1) / 2;
-  let a = nuPeak - 1 / size;
-  let b = nuPeak + 1 / size;
-  let c = b - g * (b - a);
-  let d = a + g * (b - a);
-  let pc = dtftPower(pols, c);
-  let pd = dtftPower(pols, d);
-  // 40 steps shrink the bracket by 0.618⁴⁰ ≈ 4e-9 of two bins: far below the statistical error.
-  for (let it = 0; it < 40; it++) {
-    if (pc > pd) {
-      b = d;
-      d = c;
-      pd = pc;
-      c = b - g * (b - a);
-      pc = dtftPower(pols, c);
-    } else {
-      a = c;
-      c = d;
-      pc = pd;
-      d = a + g * (b - a);
-      pd = dtftPower(pols, d);
-    }
-  }
-  let nu = (a + b) / 2;
-  nu -= Math.round(nu); // back into [−½, ½]
-  if (nu >= 0.5) nu -= 1;
+  const nu = strongestTone(pols, padding).frequency;
   return (nu * symbolRate) / 4;
 }
 
-/** A product sequence and its weight in the periodogram. */
-interface WeightedProduct {
-  readonly z: ComplexArray;
-  readonly weight: number;
-}
-
 /** x⁴, x³y, x²y², xy³, y⁴ with the multiplicities 1, 4, 6, 4, 1 of the symmetric fourth-order tensor. */
-function fourthOrderProducts(x: ComplexArray, y: ComplexArray): WeightedProduct[] {
+function fourthOrderProducts(x: ComplexArray, y: ComplexArray): WeightedSequence[] {
   const n = x.length >> 1;
   const out = [complexArray(n), complexArray(n), complexArray(n), complexArray(n), complexArray(n)];
   for (let k = 0; k < n; k++) {
@@ -160,35 +115,4 @@ function fourthPower(r: ComplexArray): ComplexArray {
     z[2 * k + 1] = 2 * sr * si;
   }
   return z;
-}
-
-// P(ν) = Σ weight·|Σₙ zₙ·e^(−j2πνn)|². The phasor is advanced by multiplication
-// and recomputed exactly every 256 samples so that rounding cannot build up.
-function dtftPower(pols: readonly WeightedProduct[], nu: number): number {
-  const w = -2 * Math.PI * nu;
-  const stepRe = Math.cos(w);
-  const stepIm = Math.sin(w);
-  let total = 0;
-  for (const { z, weight } of pols) {
-    const n = z.length >> 1;
-    let sr = 0;
-    let si = 0;
-    let pr = 1;
-    let pi = 0;
-    for (let k = 0; k < n; k++) {
-      if ((k & 255) === 0) {
-        pr = Math.cos(w * k);
-        pi = Math.sin(w * k);
-      }
-      const zr = z[2 * k];
-      const zi = z[2 * k + 1];
-      sr += zr * pr - zi * pi;
-      si += zr * pi + zi * pr;
-      const t = pr * stepRe - pi * stepIm;
-      pi = pr * stepIm + pi * stepRe;
-      pr = t;
-    }
-    total += weight * (sr * sr + si * si);
-  }
-  return total;
 }

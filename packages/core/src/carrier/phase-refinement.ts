@@ -1,4 +1,4 @@
-import { type Constellation, nearestLabel, nearestLevel } from '../modulation/constellation.js';
+import { type Constellation, nearestPoint } from '../modulation/constellation.js';
 import { type ComplexArray, complexArray } from '../signal/complex.js';
 
 /** Symbol pairs given out by {@link PhaseRefinement}. */
@@ -46,8 +46,8 @@ export class PhaseRefinement {
   /** Symbols pushed, and refined symbols given out. */
   private pushed = 0;
   private given = 0;
-  private readonly scale: number;
-  private readonly top: number;
+  /** The decision of the last {@link product}, reused. */
+  private readonly decision = new Float64Array(2);
   private productRe = 0;
   private productIm = 0;
 
@@ -66,8 +66,6 @@ export class PhaseRefinement {
     this.heldY = new Float64Array(2 * this.len);
     this.uRe = new Float64Array(this.len);
     this.uIm = new Float64Array(this.len);
-    this.scale = c.scale;
-    this.top = c.levelsPerAxis - 1;
   }
 
   /** Takes a block of symbol pairs and returns the refined ones whose windows are complete. */
@@ -152,16 +150,9 @@ export class PhaseRefinement {
 
   /** z·d*, d the decision on z, into productRe/productIm (fields, so that the loop does not allocate). */
   private product(re: number, im: number): void {
-    let dr: number;
-    let di: number;
-    if (this.c.square) {
-      dr = nearestLevel(re, this.scale, this.top);
-      di = nearestLevel(im, this.scale, this.top);
-    } else {
-      const l = nearestLabel(this.c, re, im);
-      dr = this.c.points[2 * l];
-      di = this.c.points[2 * l + 1];
-    }
+    nearestPoint(this.c, re, im, this.decision);
+    const dr = this.decision[0];
+    const di = this.decision[1];
     this.productRe = re * dr + im * di;
     this.productIm = im * dr - re * di;
   }

@@ -11,18 +11,11 @@ import { checkBlock, checkRate } from '../pipeline/block-checks.js';
 import { type FieldBlock, fieldBlock } from '../pipeline/blocks.js';
 import { LeadingSpan } from '../pipeline/leading-span.js';
 import { OptionError, type Stage, type StageRecord } from '../pipeline/stage.js';
-import { type ComplexArray, complexArray } from '../signal/complex.js';
+import { type ComplexArray, complexArray, concatComplex } from '../signal/complex.js';
 import { butterflyOutput, FILTER_XX, FILTER_XY, FILTER_YX, FILTER_YY, updateRow } from './butterfly-kernel.js';
 import type { ButterflyTaps } from './equalizer.js';
 
 const NAME = 'decision-equalizer';
-
-function joinComplex(a: ComplexArray, b: ComplexArray): ComplexArray {
-  const out = complexArray((a.length + b.length) >> 1);
-  out.set(a);
-  out.set(b, a.length);
-  return out;
-}
 
 /** Options of {@link decisionEqualizer}; only `modulation` is required. */
 export interface DecisionEqualizerOptions {
@@ -238,8 +231,8 @@ class DecisionEqualizer implements Stage<'symbols', 'symbols', DecisionEqualizer
       oy = r.y;
       if (final) {
         const tail = this.refinement.finish();
-        ox = joinComplex(ox, tail.x);
-        oy = joinComplex(oy, tail.y);
+        ox = concatComplex([ox, tail.x]);
+        oy = concatComplex([oy, tail.y]);
       }
     }
     this.given += ox.length >> 1;

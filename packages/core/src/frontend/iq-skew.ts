@@ -63,7 +63,9 @@ export const SKEW_SEGMENTS = 16;
  *
  * the positive-part James–Stein factor, which estimates τ²/(τ² + s²), the
  * gain that minimizes the mean-square error of the correction. A skew many
- * standard errors large (3 ps on 2^16 symbols: s ≈ 0.05 ps) is removed whole. * @param field the received field at 2 samples per symbol, before dispersion compensation (x = xi + j·xq, y = yi + j·yq)
+ * standard errors large is removed whole (3 ps against s of 0.03–0.3 ps on
+ * the simulated captures measured: a change of under 1 %).
+ * @param field the received field at 2 samples per symbol, before dispersion compensation (x = xi + j·xq, y = yi + j·yq)
  * @param symbolRate Rs, Bd
  * @param compensate removes the dispersion from a whole dual-polarization field at 2 samples per symbol
  * @example const skew = estimateIqSkew(span, 32e9, (f) => cd(f)); skew.xPs // ≈ 3 for xq 3 ps late

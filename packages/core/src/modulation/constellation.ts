@@ -511,6 +511,24 @@ export function nearestLevel(v: number, scale: number, top: number): number {
 }
 
 /**
+ * The nearest point itself, written to out[0] (real) and out[1] (imaginary):
+ * per axis for square QAM ({@link nearestLevel}), through
+ * {@link nearestLabel} otherwise. A per-sample kernel: it does not allocate.
+ * @example const d = new Float64Array(2); nearestPoint(constellation('16qam'), 0.5, -0.2, d); // d ≈ [0.316, −0.316]
+ */
+export function nearestPoint(c: Constellation, re: number, im: number, out: Float64Array): void {
+  if (c.square) {
+    const top = c.levelsPerAxis - 1;
+    out[0] = nearestLevel(re, c.scale, top);
+    out[1] = nearestLevel(im, c.scale, top);
+    return;
+  }
+  const l = nearestLabel(c, re, im);
+  out[0] = c.points[2 * l];
+  out[1] = c.points[2 * l + 1];
+}
+
+/**
  * Maps bits to symbols: `bitsPerSymbol` consecutive bits (MSB first) per symbol.
  * @param bits N·log2 M bits, each 0 or 1
  * @returns N complex symbols

@@ -46,7 +46,9 @@ Options (each overrides the descriptor):
   --orthogonalization NAME
                         IQ orthogonalization: ${ALGORITHMS.orthogonalization.join(' or ')} (default gsop)
   --data-aided          train the equalizer on the transmitted symbols after a blind
-                        pass has aligned them (the best case to compare blind DSP with)
+                        pass has aligned them (the best case to compare blind DSP with;
+                        shaped formats are always analysed so, placed against the
+                        reference without a blind pass)
   --pipeline FILE       JSON with "receiver" (stage options) and "analysis" settings
   --out DIR             also write <name>.analysis.json and <name>.symbols.arrow there
                         (created when missing; the two files are written both or neither)

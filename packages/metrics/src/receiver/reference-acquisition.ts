@@ -6,14 +6,15 @@ import {
   defaultReceiver,
   type FieldBlock,
   fft,
-  ifft,
-  nextPowerOfTwo,
   pipe,
   type ReceiverSettings,
   type ReplacedStages,
   type Stage,
+  strongestTone,
+  type WeightedSequence,
 } from '@intradyne/core';
 import { type CompactReference, isCompactReference, referencePoints } from '../counting/compact-reference.js';
+import { circularCorrelation, foldOntoPeriod } from '../sync/correlation.js';
 
 /** What {@link acquireWithReference} found on the start of a capture. */
 export interface ReferenceAcquisition {
@@ -74,14 +75,14 @@ export class AcquisitionError extends Error {
  * follows |sₓ|² + |s_y|² of the transmitted symbols, and each polarization's
  * share of it. Each reference polarization's delay is the peak of the
  * circular correlation, over every delay of the periodic reference, of the
- * received power with that polarization's power, means removed (by FFT).
+ * received power folded onto one period with that polarization's power,
+ * means removed (the synchronization's `circularCorrelation`).
  *
  * Offset: with the delays known, the four products rₐ(k)·s_b*(k − D_b)
  * (a, b ∈ {x, y}) each hold J_ab·|s_b|²·e^(jωk) plus terms of zero mean,
  * whatever the polarization state J; the offset is the peak of the sum of
- * their periodograms (zero-padded four times, the peak placed by a parabola
- * through its neighbours), data-aided and polarization independent. Range
- * ±Rs/2; resolution well under the 1/K of one bin. A capture with I and Q
+ * their periodograms (`strongestTone` of core), data-aided and polarization
+ * independent. Range ±Rs/2. A capture with I and Q
  * swapped carries the conjugate of the field (times j): its products with
  * s_b instead of s_b* hold the tone, so both are formed and the stronger
  * peak says which, and at what frequency the capture's field turns.
@@ -184,43 +185,28 @@ function symbolInstants(
 function powerDelay(r: Instants, ref: ComplexArray): { delay: number; peakToRms: number } {
   const k = r.count;
   const nt = ref.length >> 1;
-  const size = nextPowerOfTwo(nt + k);
-  const received = complexArray(size);
+  const received = complexArray(k);
   let mean = 0;
   for (let i = 0; i < k; i++) mean += power(r.x, i) + power(r.y, i);
   mean /= Math.max(1, k);
   for (let i = 0; i < k; i++) received[2 * i] = power(r.x, i) + power(r.y, i) - mean;
-  // The reference repeated over the whole transform: t(n) = |s((n) mod Nt)|², so that
-  // c(L) = Σₖ t(k + L)·p(k) needs no wrap for k < K, L < Nt.
+  const transmitted = complexArray(nt);
   let refMean = 0;
   for (let n = 0; n < nt; n++) refMean += power(ref, n);
   refMean /= nt;
-  const repeated = complexArray(size);
-  for (let n = 0; n < size; n++) repeated[2 * n] = power(ref, n % nt) - refMean;
-  const P = fft(received);
-  const T = fft(repeated);
-  const C = complexArray(size);
-  for (let i = 0; i < size; i++) {
-    // T·P*: the correlation c(L) = Σₙ t(n + L)·p(n).
-    C[2 * i] = T[2 * i] * P[2 * i] + T[2 * i + 1] * P[2 * i + 1];
-    C[2 * i + 1] = T[2 * i + 1] * P[2 * i] - T[2 * i] * P[2 * i + 1];
-  }
-  const c = ifft(C);
+  for (let n = 0; n < nt; n++) transmitted[2 * n] = power(ref, n) - refMean;
+  // c[D] = Σₘ F[m]·t[m − D] over one period: received symbol n carries reference symbol n − D.
+  const c = circularCorrelation(fft(foldOntoPeriod(received, 0, nt)), fft(transmitted), false);
   let best = 0;
-  let peak = Number.NEGATIVE_INFINITY;
   let sum2 = 0;
-  for (let L = 0; L < nt; L++) {
-    const v = c[2 * L];
-    sum2 += v * v;
-    if (v > peak) {
-      peak = v;
-      best = L;
-    }
+  for (let d = 0; d < nt; d++) {
+    sum2 += c[2 * d] * c[2 * d];
+    if (c[2 * d] > c[2 * best]) best = d;
   }
+  const peak = c[2 * best];
   const others = nt > 1 ? (sum2 - peak * peak) / (nt - 1) : 0;
-  // Received symbol k carries reference symbol k + L, that is k − D with D = −L mod Nt.
   // A correlation that is zero everywhere else (a reference of one symbol) tells nothing: 0.
-  return { delay: (nt - best) % nt, peakToRms: others > 0 ? peak / Math.sqrt(others) : 0 };
+  return { delay: best, peakToRms: others > 0 ? peak / Math.sqrt(others) : 0 };
 }
 
 /**
@@ -233,29 +219,27 @@ function offsetAgainstReference(
   ref: Readonly<Record<'x' | 'y', ComplexArray>>,
   delays: Record<'x' | 'y', number>,
 ): { cyclesPerSymbol: number; conjugated: boolean } {
-  const straight = productPeak(r, ref, delays, false);
-  const conjugate = productPeak(r, ref, delays, true);
-  const best = conjugate.peak > straight.peak ? conjugate : straight;
-  return { cyclesPerSymbol: best.cyclesPerSymbol, conjugated: conjugate.peak > straight.peak };
+  const straight = strongestTone(products(r, ref, delays, false), 4);
+  const conjugate = strongestTone(products(r, ref, delays, true), 4);
+  const conjugated = conjugate.power > straight.power;
+  return { cyclesPerSymbol: (conjugated ? conjugate : straight).frequency, conjugated };
 }
 
-/** The peak of the summed periodograms of rₐ·s_b* (or rₐ·s_b when `conjugate`): its height and frequency. */
-function productPeak(
+/** The four sequences rₐ(k)·s_b*(k − D_b) (rₐ(k)·s_b(k − D_b) when `conjugate`), a, b ∈ {x, y}. */
+function products(
   r: Instants,
   ref: Readonly<Record<'x' | 'y', ComplexArray>>,
   delays: Record<'x' | 'y', number>,
   conjugate: boolean,
-): { peak: number; cyclesPerSymbol: number } {
+): WeightedSequence[] {
   const k = r.count;
-  const size = 4 * nextPowerOfTwo(k);
-  const spectrum = new Float64Array(size);
-  const u = complexArray(size);
   const sign = conjugate ? -1 : 1;
+  const out: WeightedSequence[] = [];
   for (const received of [r.x, r.y]) {
     for (const p of ['x', 'y'] as const) {
       const s = ref[p];
       const nt = s.length >> 1;
-      u.fill(0);
+      const u = complexArray(k);
       for (let i = 0; i < k; i++) {
         const m = (((i - delays[p]) % nt) + nt) % nt;
         // s* as sent, or s itself for a conjugated capture: (sr − j·sign·si)
@@ -264,20 +248,10 @@ function productPeak(
         u[2 * i] = received[2 * i] * sr + received[2 * i + 1] * si;
         u[2 * i + 1] = received[2 * i + 1] * sr - received[2 * i] * si;
       }
-      const U = fft(u);
-      for (let i = 0; i < size; i++) spectrum[i] += U[2 * i] ** 2 + U[2 * i + 1] ** 2;
+      out.push({ z: u, weight: 1 });
     }
   }
-  let best = 0;
-  for (let i = 1; i < size; i++) if (spectrum[i] > spectrum[best]) best = i;
-  const below = spectrum[(best - 1 + size) % size];
-  const at = spectrum[best];
-  const above = spectrum[(best + 1) % size];
-  const curvature = below - 2 * at + above;
-  const shift = curvature < 0 ? (0.5 * (below - above)) / curvature : 0;
-  let bin = best + shift;
-  if (bin >= size / 2) bin -= size;
-  return { peak: at, cyclesPerSymbol: bin / size };
+  return out;
 }
 
 function power(z: ComplexArray, i: number): number {
