@@ -1,4 +1,4 @@
-import { type BlockOf, blockLength, concatBlocks, type Domain } from './blocks.js';
+import { type BlockOf, blockLength, concatBlocks, type Domain, sliceBlock } from './blocks.js';
 import { type AnyStage, BlockError, type Stage, type StageRecord } from './stage.js';
 
 /**
@@ -143,6 +143,18 @@ export function pipe(...stages: AnyStage[]): Pipeline<Domain, Domain, unknown[]>
   return new Chain(stages);
 }
 
+/**
+ * Longest block a chain hands from one stage to the next: 65,536 samples (or symbols),
+ * the capture readers' block. Longer ones are cut (see `Chain.runFrom`).
+ */
+const PIECE_SAMPLES = 65_536;
+
+/** Outputs of one stage's successive calls joined: the non-empty ones, or the first when all are empty. */
+function joinOutputs(parts: readonly BlockOf<Domain>[]): BlockOf<Domain> {
+  const nonEmpty = parts.filter((p) => blockLength(p) > 0);
+  return nonEmpty.length > 0 ? concatBlocks(nonEmpty) : parts[0];
+}
+
 class Chain implements Pipeline<Domain, Domain, unknown[]> {
   readonly name = 'pipeline';
   readonly input: Domain;
@@ -154,8 +166,28 @@ class Chain implements Pipeline<Domain, Domain, unknown[]> {
   }
 
   process(block: BlockOf<Domain>): BlockOf<Domain> {
+    return this.runFrom(0, block);
+  }
+
+  /**
+   * The stages from `first` on. A block longer than {@link PIECE_SAMPLES} that a stage
+   * releases at once (a span it held to estimate on) goes on in pieces: every stage is
+   * block-size invariant, so the output is the same, and each stage after it works on
+   * (and allocates for) a piece at a time instead of the whole span.
+   */
+  private runFrom(first: number, block: BlockOf<Domain>): BlockOf<Domain> {
     let b = block;
-    for (const s of this.stages) b = s.process(b);
+    for (let i = first; i < this.stages.length; i++) {
+      const n = blockLength(b);
+      if (i > first && n > PIECE_SAMPLES) {
+        const parts: BlockOf<Domain>[] = [];
+        for (let at = 0; at < n; at += PIECE_SAMPLES) {
+          parts.push(this.runFrom(i, sliceBlock(b, at, Math.min(n, at + PIECE_SAMPLES))));
+        }
+        return joinOutputs(parts);
+      }
+      b = this.stages[i].process(b);
+    }
     return b;
   }
 
@@ -167,8 +199,7 @@ class Chain implements Pipeline<Domain, Domain, unknown[]> {
       if (pending) parts.push(s.process(pending));
       const tail = s.flush();
       if (tail) parts.push(tail);
-      const nonEmpty = parts.filter((p) => blockLength(p) > 0);
-      pending = nonEmpty.length > 0 ? concatBlocks(nonEmpty) : (parts[0] ?? null);
+      pending = parts.length > 0 ? joinOutputs(parts) : null;
     }
     return pending;
   }

@@ -69,4 +69,31 @@ describe('pipe', () => {
     chain.reset();
     expect(chain.diagnostics()[1].samples).toBe(0);
   });
+
+  it('hands a long block on in pieces of at most 65,536 samples, with the same output', () => {
+    // A stage that records the lengths it is given: after combine, a 200,000-sample block arrives in
+    // four pieces; the chain's output is the same as the FIR's on the whole block.
+    const seen: number[] = [];
+    const recorder: Stage<'field', 'field', null> = {
+      name: 'recorder',
+      input: 'field',
+      output: 'field',
+      process: (b) => {
+        seen.push(b.x.length >> 1);
+        return b;
+      },
+      flush: () => null,
+      reset: () => {},
+      diagnostics: () => null,
+      describe: (): StageRecord => ({ stage: 'recorder', options: {} }),
+    };
+    const taps = Float64Array.of(0.5, 0.1, 1, -0.2, 0.25, 0) as ReturnType<typeof complexArray>;
+    const input = randomChannels(200_000, 4);
+    const chain = pipe(combineChannels(), recorder, firFilter({ taps }));
+    const out = chain.process(input);
+    expect(seen).toEqual([65_536, 65_536, 65_536, 3_392]);
+    const whole = firFilter({ taps }).process(combineChannels().process(input));
+    expect(Array.from(out.x)).toEqual(Array.from(whole.x));
+    expect(Array.from(out.y)).toEqual(Array.from(whole.y));
+  });
 });

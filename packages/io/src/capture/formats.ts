@@ -8,6 +8,7 @@ import {
   readArrowMetadata,
 } from '../arrow/arrow-capture.js';
 import { readCsvCapture, readCsvCaptureAsync } from '../load/csv-capture.js';
+import { readCaptureCsvAhead, worthParsingAhead } from '../load/parse-ahead.js';
 import { DESCRIPTOR_FIELDS, type FieldValue } from './descriptor.js';
 import { checkReferenceConstellation, compactReferenceOf, loadReferenceCsv, loadReferenceLabelsCsv } from './reference.js';
 
@@ -63,7 +64,8 @@ const CSV: CaptureFormat = {
     return first.done ? undefined : first.value.sampleRate;
   },
   warning: () => null,
-  blocks: (path, o) => readCsvCapture(path, o),
+  // A large file is parsed on a second thread while the caller works on the blocks already read.
+  blocks: (path, o) => (worthParsingAhead(path) ? readCaptureCsvAhead(path, o) : readCsvCapture(path, o)),
   blocksAsync: (path, o) => readCsvCaptureAsync(path, o),
   reference: (path) => loadReferenceCsv(path),
   referenceLabels: (path, modulation) => loadReferenceLabelsCsv(path, modulation),

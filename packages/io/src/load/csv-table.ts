@@ -85,6 +85,7 @@ export class NumericCsvTable {
   private lines: Int32Array = new Int32Array(0);
   private headerNames: string[] = [];
   private started = false;
+  private readonly spare: { slots: Float64Array[]; lines: Int32Array }[] = [];
 
   constructor(
     private readonly file: string,
@@ -197,10 +198,26 @@ export class NumericCsvTable {
   }
 
   private newBlock(): void {
-    this.slots = [];
-    for (let s = 0; s < this.slotCount; s++) this.slots.push(new Float64Array(this.blockRows));
-    this.lines = new Int32Array(this.blockRows);
+    const reused = this.spare.pop();
+    if (reused) {
+      this.slots = reused.slots;
+      this.lines = reused.lines;
+    } else {
+      this.slots = [];
+      for (let s = 0; s < this.slotCount; s++) this.slots.push(new Float64Array(this.blockRows));
+      this.lines = new Int32Array(this.blockRows);
+    }
     this.rows = 0;
+  }
+
+  /**
+   * Gives a block's arrays back to be filled again, for a caller done with it (it copied
+   * the values): a reader that recycles allocates nothing per block. A short block (the
+   * last, or one cut at the end of a feed) has arrays of its own and is not kept.
+   */
+  recycle(block: TableBlock): void {
+    if (block.rows !== this.blockRows || block.slots.length !== this.slotCount) return;
+    this.spare.push({ slots: block.slots as Float64Array[], lines: block.lines });
   }
 
   private flushBlock(): void {

@@ -1,19 +1,7 @@
-import { existsSync } from 'node:fs';
-import { fileURLToPath } from 'node:url';
 import { Worker } from 'node:worker_threads';
 import type { AnalysisSettings } from '../analysis/analyze-file.js';
+import { builtModule } from '../built-module.js';
 import type { SweepOutcome, SweepTask } from './analyze-task.js';
-
-/**
- * The worker entry: `worker.js` beside this module in the built package.
- * When this module runs from its TypeScript source (in the tests), the
- * built entry of the same package is used, so the package must be built.
- */
-export function workerEntry(): URL {
-  const beside = new URL('./worker.js', import.meta.url);
-  if (existsSync(fileURLToPath(beside))) return beside;
-  return new URL('../../dist/sweep/worker.js', import.meta.url);
-}
 
 /**
  * Runs the tasks on `jobs` worker threads, each analysing one capture at a
@@ -47,7 +35,7 @@ export function runOnWorkers(
     };
     const count = Math.min(jobs, tasks.length);
     for (let i = 0; i < count; i++) {
-      const w = new Worker(workerEntry(), { workerData: { settings } });
+      const w = new Worker(builtModule('sweep/worker.js'), { workerData: { settings } });
       workers.push(w);
       w.on('message', (o: SweepOutcome) => {
         if (failed) return;
