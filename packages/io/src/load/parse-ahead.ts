@@ -152,7 +152,10 @@ export function parseAhead({ path, options, counters, ring, blockRows, port }: P
         Atomics.wait(counters, TAKEN, taken);
       }
       const at = (posted % PARSE_AHEAD_BLOCKS) * 4 * blockRows;
-      [b.xi, b.xq, b.yi, b.yq].forEach((samples, c) => ring.set(samples, at + c * blockRows));
+      ring.set(b.xi, at);
+      ring.set(b.xq, at + blockRows);
+      ring.set(b.yi, at + 2 * blockRows);
+      ring.set(b.yq, at + 3 * blockRows);
       post({ kind: 'block', rows: b.xi.length, sampleRate: b.sampleRate, samplesPerSymbol: b.samplesPerSymbol });
       posted++;
     }
