@@ -74,8 +74,11 @@ export interface CaptureDescription {
         /** The option that gave the value, e.g. '--symbol-rate'. */
         readonly option: string;
       };
-  /** Streams the capture in blocks (bounded memory); `blockSize` applies to CSV (Arrow yields one block per batch). */
-  blocks(options?: { readonly blockSize?: number }): Generator<ChannelBlock, void, undefined>;
+  /**
+   * Streams the capture in blocks (bounded memory); `blockSize` applies to CSV (Arrow yields one block per batch),
+   * and so does `parseAhead`: parse on a thread of its own while the caller works on the blocks already read.
+   */
+  blocks(options?: { readonly blockSize?: number; readonly parseAhead?: boolean }): Generator<ChannelBlock, void, undefined>;
   /** The asynchronous form of `blocks`. */
   blocksAsync(options?: { readonly blockSize?: number }): AsyncGenerator<ChannelBlock, void, undefined>;
 }
@@ -189,11 +192,12 @@ export function openCapture(path: string, overrides: Readonly<Record<string, unk
   const reference = loadReferenceLabels(referencePath, descriptorFile, d.modulation, d.reference);
   const samplesPerSymbol = sampleRate / d.symbolRate;
   const rate = sampleRate;
-  const read = (o?: { blockSize?: number }): ReadOptions => ({
+  const read = (o?: { blockSize?: number; parseAhead?: boolean }): ReadOptions => ({
     columns: d.columns,
     sampleRate: rate,
     samplesPerSymbol,
     blockSize: o?.blockSize,
+    parseAhead: o?.parseAhead,
   });
   const warning = format.warning(dataPath);
   const warnings: string[] = warning === null ? [] : [warning];

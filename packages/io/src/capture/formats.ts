@@ -8,7 +8,7 @@ import {
   readArrowMetadata,
 } from '../arrow/arrow-capture.js';
 import { readCsvCapture, readCsvCaptureAsync } from '../load/csv-capture.js';
-import { readCaptureCsvAhead, worthParsingAhead } from '../load/parse-ahead.js';
+import { readCaptureCsvAhead } from '../load/parse-ahead.js';
 import { DESCRIPTOR_FIELDS, type FieldValue } from './descriptor.js';
 import { checkReferenceConstellation, compactReferenceOf, loadReferenceCsv, loadReferenceLabelsCsv } from './reference.js';
 
@@ -22,6 +22,8 @@ export interface ReadOptions {
   readonly samplesPerSymbol: number;
   /** Samples per block, where the format has a choice (CSV; Arrow yields its record batches). */
   readonly blockSize?: number;
+  /** Parse on a thread of its own while the caller works on the blocks already read, where the format parses (CSV). */
+  readonly parseAhead?: boolean;
 }
 
 /**
@@ -64,8 +66,7 @@ const CSV: CaptureFormat = {
     return first.done ? undefined : first.value.sampleRate;
   },
   warning: () => null,
-  // A large file is parsed on a second thread while the caller works on the blocks already read.
-  blocks: (path, o) => (worthParsingAhead(path) ? readCaptureCsvAhead(path, o) : readCsvCapture(path, o)),
+  blocks: (path, o) => (o.parseAhead ? readCaptureCsvAhead(path, o) : readCsvCapture(path, o)),
   blocksAsync: (path, o) => readCsvCaptureAsync(path, o),
   reference: (path) => loadReferenceCsv(path),
   referenceLabels: (path, modulation) => loadReferenceLabelsCsv(path, modulation),

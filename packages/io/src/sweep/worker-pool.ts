@@ -1,6 +1,6 @@
 import { Worker } from 'node:worker_threads';
 import type { AnalysisSettings } from '../analysis/analyze-file.js';
-import { builtModule } from '../built-module.js';
+import { builtModule } from '../threads/built-module.js';
 import type { SweepOutcome, SweepTask } from './analyze-task.js';
 
 /**

@@ -4,7 +4,8 @@ import { type ChannelBlock, simulate } from '@intradyne/core';
 import { describe, expect, it } from 'vitest';
 import { InputError } from '../../src/errors/input-error.js';
 import { readCsvCapture, readCsvCaptureReusing } from '../../src/load/csv-capture.js';
-import { PARSE_AHEAD_BYTES, readCaptureCsvAhead, worthParsingAhead } from '../../src/load/parse-ahead.js';
+import { readCaptureCsvAhead } from '../../src/load/parse-ahead.js';
+import { HELPER_THREAD_BYTES, worthHelperThreads } from '../../src/threads/helper-threads.js';
 import { writeCaptureCsv } from '../../src/write/csv.js';
 import { caught, tempDir } from '../support/temp.js';
 
@@ -90,14 +91,14 @@ describe('parsing a CSV capture on a second thread', () => {
     expect(again.reduce((n, b) => n + b.xi.length, 0)).toBe(3000);
   });
 
-  it('is chosen for files of PARSE_AHEAD_BYTES and more', () => {
+  it('helper threads are for files of HELPER_THREAD_BYTES and more', () => {
     const dir = tempDir();
     const small = join(dir, 'small.csv');
     writeFileSync(small, 'xi,xq,yi,yq\n0,0,0,0\n');
-    expect(worthParsingAhead(small)).toBe(false);
+    expect(worthHelperThreads(small)).toBe(false);
     const large = join(dir, 'large.csv');
-    writeFileSync(large, Buffer.alloc(PARSE_AHEAD_BYTES, 0x20));
-    expect(worthParsingAhead(large)).toBe(true);
-    expect(worthParsingAhead(join(dir, 'missing.csv'))).toBe(false);
+    writeFileSync(large, Buffer.alloc(HELPER_THREAD_BYTES, 0x20));
+    expect(worthHelperThreads(large)).toBe(true);
+    expect(worthHelperThreads(join(dir, 'missing.csv'))).toBe(false);
   });
 });
