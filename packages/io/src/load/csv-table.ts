@@ -1,5 +1,5 @@
 import { InputError, quoteText } from '../errors/input-error.js';
-import { decimalEnd, scanDecimal } from './decimal.js';
+import { decimalEnd, scanDecimalTo } from './decimal.js';
 import { textStart } from './encoding.js';
 
 /** A header cell: its name (trimmed, surrounding quotes removed) and its 1-based field and column. */
@@ -249,12 +249,13 @@ export class NumericCsvTable {
         let a = cell;
         while (a < end && (bytes[a] === SPACE || bytes[a] === TAB)) a++;
         // One pass: the number is read where it starts, then what follows must end the cell.
-        const v = scanDecimal(bytes, a, end);
+        const column = this.slots[slot];
+        scanDecimalTo(bytes, a, end, column, row);
+        const v = column[row];
         k = decimalEnd();
         while (k < end && (bytes[k] === SPACE || bytes[k] === TAB)) k++;
         // NaN is the parser's signal for a bad cell.
         if (Number.isNaN(v) || (k < end && bytes[k] !== delimiter)) this.badCell(bytes, start, a, end, field);
-        this.slots[slot][row] = v;
       } else {
         k = cell;
         while (k < end && bytes[k] !== delimiter) k++;

@@ -41,8 +41,12 @@ bits[0] = 1;
 /** The exponent trick reads the high word at index 1: little-endian only; otherwise always fall back. */
 const LITTLE_ENDIAN = words[1] === 0x3ff00000;
 
-/** Low part of the last `twoProduct`: a·b = p + productError exactly. */
-let productError = 0;
+/**
+ * Low part of the last `twoProduct`: a·b = p + productError[0] exactly. In a typed
+ * array, not a `let`: a double stored in a module variable is boxed on the heap, one
+ * allocation per number parsed.
+ */
+const productError = new Float64Array(1);
 
 // Dekker's TwoProduct without FMA: a·b = p + e exactly (no overflow here:
 // |a|, |b| < 1e23).
@@ -54,7 +58,7 @@ function twoProduct(a: number, b: number): number {
   t = SPLIT * b;
   const bh = t - (t - b);
   const bl = b - bh;
-  productError = ah * bh - p + ah * bl + al * bh + al * bl;
+  productError[0] = ah * bh - p + ah * bl + al * bh + al * bl;
   return p;
 }
 
@@ -82,13 +86,28 @@ export function parseDecimal(bytes: Uint8Array, start: number, end: number): num
  * Reads the longest decimal number that starts at `bytes[start]` and ends by
  * `limit` (the caller checks what follows with {@link decimalEnd}). Same
  * exactness as {@link parseDecimal}.
+ * @returns the value, or NaN when no number starts here or it overflows
+ */
+export function scanDecimal(bytes: Uint8Array, start: number, limit: number): number {
+  scanDecimalTo(bytes, start, limit, cell, 0);
+  return cell[0];
+}
+
+/** One value's room, for the readers that return a number. */
+const cell = new Float64Array(1);
+
+/**
+ * {@link scanDecimal} writing the value into `out[at]` instead of returning it:
+ * a double returned from a function that is not inlined is boxed on the heap,
+ * and the loaders parse millions of them (the boxes were 0.4 GB of garbage for
+ * a 2^20-symbol capture).
  *
  * The common shapes (at most 15 digits before the point, at most 19
  * significant digits, no leading zeros) take tight loops; any other shape
  * goes through the general digit-by-digit reader.
- * @returns the value, or NaN when no number starts here or it overflows
+ * @example scanDecimalTo(bytes, 0, bytes.length, column, row); if (Number.isNaN(column[row])) fail();
  */
-export function scanDecimal(bytes: Uint8Array, start: number, limit: number): number {
+export function scanDecimalTo(bytes: Uint8Array, start: number, limit: number, out: Float64Array, at: number): void {
   let i = start;
   let negative = false;
   if (i < limit) {
@@ -107,7 +126,10 @@ export function scanDecimal(bytes: Uint8Array, start: number, limit: number): nu
     i++;
   }
   const intDigits = i - intStart;
-  if (intDigits > 15 || (intDigits > 1 && bytes[intStart] === 48)) return scanGeneral(bytes, start, limit);
+  if (intDigits > 15 || (intDigits > 1 && bytes[intStart] === 48)) {
+    out[at] = scanGeneral(bytes, start, limit);
+    return;
+  }
   let significant = hi === 0 ? 0 : intDigits;
   let lo = 0;
   let loDigits = 0;
@@ -137,13 +159,17 @@ export function scanDecimal(bytes: Uint8Array, start: number, limit: number): nu
         i++;
       }
       loDigits = i - loFrom;
-      if (i < limit && (bytes[i] - 48) >>> 0 <= 9) return scanGeneral(bytes, start, limit);
+      if (i < limit && (bytes[i] - 48) >>> 0 <= 9) {
+    out[at] = scanGeneral(bytes, start, limit);
+    return;
+  }
     }
     fracDigits = i - fracStart;
   }
   if (intDigits + fracDigits === 0) {
     scanned = start;
-    return Number.NaN;
+    out[at] = Number.NaN;
+    return;
   }
   let exponent = -fracDigits;
   if (i < limit && (bytes[i] | 32) === 101) {
@@ -165,14 +191,19 @@ export function scanDecimal(bytes: Uint8Array, start: number, limit: number): nu
     // '1e' is not a number (Number('1e') is NaN).
     if (j === from) {
       scanned = j;
-      return Number.NaN;
+      out[at] = Number.NaN;
+      return;
     }
     exponent += expNegative ? -e : e;
     i = j;
   }
   scanned = i;
-  if (significant === 0) return negative ? -0 : 0;
-  return assemble(negative, hi, lo, loDigits, exponent, bytes, start, i);
+  if (significant === 0) out[at] = negative ? -0 : 0;
+  else {
+    mantissa[0] = hi;
+    mantissa[1] = lo;
+    assembleTo(negative, loDigits, exponent, bytes, start, i, out, at);
+  }
 }
 
 /** The digit-by-digit reader for every shape (exponents, long integer parts, many digits). */
@@ -267,21 +298,36 @@ function scanGeneral(bytes: Uint8Array, start: number, end: number): number {
   scanned = i;
   if (significant === 0) return negative ? -0 : 0;
   if (inexact) return fallback(bytes, start, i);
-  return assemble(negative, hi, lo, loDigits, exponent, bytes, start, i);
+  mantissa[0] = hi;
+  mantissa[1] = lo;
+  assembleTo(negative, loDigits, exponent, bytes, start, i, cell, 0);
+  return cell[0];
 }
 
-/** m·10^e with m = hi·10^loDigits + lo, correctly rounded, or the fallback. */
-function assemble(
+/**
+ * The digits of the number being assembled: hi (its first 15 significant digits) and lo
+ * (the next loDigits). Handed over in a typed array, as doubles passed as arguments to a
+ * function that is not inlined are boxed on the heap.
+ */
+const mantissa = new Float64Array(2);
+
+/** m·10^e with m = hi·10^loDigits + lo ({@link mantissa}), correctly rounded, or the fallback, into out[at]. */
+function assembleTo(
   negative: boolean,
-  hi: number,
-  lo: number,
   loDigits: number,
   exponent: number,
   bytes: Uint8Array,
   start: number,
   end: number,
-): number {
-  if (exponent > 22 || exponent < -22 || !LITTLE_ENDIAN) return fallback(bytes, start, end);
+  out: Float64Array,
+  at: number,
+): void {
+  if (exponent > 22 || exponent < -22 || !LITTLE_ENDIAN) {
+    out[at] = fallback(bytes, start, end);
+    return;
+  }
+  const hi = mantissa[0];
+  const lo = mantissa[1];
   let v: number;
   if (loDigits === 0) {
     // Clinger's fast path: m and 10^|e| exact, one rounding.
@@ -289,7 +335,7 @@ function assemble(
   } else {
     // m = hi·10^loDigits + lo as a double-double (mh, ml).
     let mh = twoProduct(hi, POW10[loDigits]);
-    const me = productError;
+    const me = productError[0];
     const s = mh + lo;
     const bv = s - mh;
     const sumError = mh - (s - bv) + (lo - bv);
@@ -301,13 +347,13 @@ function assemble(
     if (exponent >= 0) {
       const p = POW10[exponent];
       q1 = twoProduct(mh, p);
-      q2 = ml * p + productError;
+      q2 = ml * p + productError[0];
     } else {
       const d = POW10[-exponent];
       q1 = mh / d;
       const p2 = twoProduct(q1, d);
       // mh − p2 is exact (Sterbenz: p2 is within one rounding of mh).
-      const r = mh - p2 - productError + ml;
+      const r = mh - p2 - productError[0] + ml;
       q2 = r / d;
     }
     v = q1 + q2;
@@ -317,9 +363,12 @@ function assemble(
     let halfGap = HALF_GAP[(high >>> 20) & 0x7ff];
     // Below a power of two the gap is half as wide.
     if (rest < 0 && (high & 0xfffff) === 0 && words[0] === 0) halfGap *= 0.5;
-    if (!(Math.abs(rest) < halfGap - v * 8.077935669463161e-28)) return fallback(bytes, start, end);
+    if (!(Math.abs(rest) < halfGap - v * 8.077935669463161e-28)) {
+      out[at] = fallback(bytes, start, end);
+      return;
+    }
   }
-  return negative ? -v : v;
+  out[at] = negative ? -v : v;
 }
 
 // 8.077935669463161e-28 is 2^−90: the margin for the double-double error.
