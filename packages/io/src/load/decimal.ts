@@ -160,9 +160,9 @@ export function scanDecimalTo(bytes: Uint8Array, start: number, limit: number, o
       }
       loDigits = i - loFrom;
       if (i < limit && (bytes[i] - 48) >>> 0 <= 9) {
-    out[at] = scanGeneral(bytes, start, limit);
-    return;
-  }
+        out[at] = scanGeneral(bytes, start, limit);
+        return;
+      }
     }
     fracDigits = i - fracStart;
   }

@@ -117,11 +117,8 @@ export function segmentPeaks(
             }
           }
           ifft(prod, out);
-          const t = trackers[p][q][conjugate ? 1 : 0];
-          for (let i = 0; i < lags; i++) {
-            const e = b - 1 - i;
-            t.add(d0 + i, out[2 * e] * out[2 * e] + out[2 * e + 1] * out[2 * e + 1]);
-          }
+          // Delay d0 + i sits at out[b − 1 − i].
+          trackers[p][q][conjugate ? 1 : 0].addReversed(out, b - 1, d0, lags);
         }
       }
     }
@@ -142,8 +139,26 @@ class PeakTracker {
   private least = 0;
   private total = 0;
 
-  add(delay: number, m2: number): void {
-    this.total += m2;
+  /**
+   * Adds |c|² of delays `first` … `first + count − 1`, read from the complex values
+   * c[last], c[last − 1], …: one call per block, as a double passed to a method that
+   * is not inlined is boxed on the heap (millions of them for a long reference).
+   */
+  addReversed(c: Float64Array, last: number, first: number, count: number): void {
+    // Summed in the same order as one delay at a time: the floor is the same to the bit.
+    let total = this.total;
+    for (let i = 0; i < count; i++) {
+      const e = last - i;
+      const m2 = c[2 * e] * c[2 * e] + c[2 * e + 1] * c[2 * e + 1];
+      total += m2;
+      // Most delays are below every kept one: only those above the least kept go further.
+      if (this.size === this.m2.length && !(m2 > this.m2[this.least])) continue;
+      this.keep(first + i, m2);
+    }
+    this.total = total;
+  }
+
+  private keep(delay: number, m2: number): void {
     if (this.size < this.m2.length) {
       this.delays[this.size] = delay;
       this.m2[this.size] = m2;
