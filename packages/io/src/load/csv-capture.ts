@@ -95,7 +95,12 @@ interface TimedBlock {
   readonly source?: TableBlock;
 }
 
-function checkOptions(options: CsvCaptureOptions): void {
+/**
+ * Checks the options of the CSV capture readers.
+ * @throws RangeError for a sample rate that is not a positive number, or a block size that is not a positive integer
+ * @example checkCsvCaptureOptions({ sampleRate: 80e9, blockSize: 65536 });
+ */
+export function checkCsvCaptureOptions(options: CsvCaptureOptions): void {
   const { sampleRate, blockSize } = options;
   if (sampleRate !== undefined && !(Number.isFinite(sampleRate) && sampleRate > 0)) {
     throw new RangeError(`csv capture: sampleRate expected a positive number of Sa/s, received ${sampleRate}`);
@@ -127,7 +132,7 @@ class CaptureCsvState {
     private readonly options: CsvCaptureOptions,
     wanted: readonly ChannelName[],
   ) {
-    checkOptions(options);
+    checkCsvCaptureOptions(options);
     this.timeSlot = wanted.length;
     this.axis = new TimeAxis(file, options.columns?.t ?? 't', options.sampleRate);
     this.table = new NumericCsvTable(file, captureResolver(file, options, wanted), (b) => this.queue.push(b), {

@@ -3,11 +3,17 @@ import type { ChannelBlock } from '@intradyne/core';
 import { builtModule } from '../threads/built-module.js';
 import { receiveCounted } from '../threads/hand-over.js';
 import { fromThreadError } from '../threads/thread-error.js';
-import type { CsvCaptureOptions } from './csv-capture.js';
+import { type CsvCaptureOptions, checkCsvCaptureOptions, readCsvCapture } from './csv-capture.js';
 import { PARSE_AHEAD_BLOCKS, type ParseAheadData, type ParseAheadMessage, POSTED, STOP, TAKEN } from './parse-ahead-protocol.js';
 
 /** The CSV reader's block when the options name none (see `CsvCaptureOptions.blockSize`). */
 const DEFAULT_BLOCK_ROWS = 65536;
+
+/**
+ * Largest block parsed ahead: 2^20 rows (the ring then holds 100 MB). Larger blocks are
+ * read on the caller's thread, whose reader holds one block at a time.
+ */
+export const MAX_AHEAD_BLOCK_ROWS = 1 << 20;
 
 /**
  * {@link readCsvCapture} with the parsing on a worker thread: the same blocks (bit for
@@ -16,13 +22,19 @@ const DEFAULT_BLOCK_ROWS = 65536;
  * synchronous consumer (the analysis) overlaps its work with the parse without becoming
  * asynchronous: the caller waits on a shared counter only when the parse is behind. At
  * most {@link PARSE_AHEAD_BLOCKS} blocks wait. Stopping early (a `break`, an error in the
- * caller) stops the thread.
+ * caller) stops the thread. Blocks of more than {@link MAX_AHEAD_BLOCK_ROWS} rows are
+ * read on this thread.
  * @throws InputError as {@link readCsvCapture}
  * @example for (const block of readCaptureCsvAhead('run-07.csv', { sampleRate: 80e9 })) chain.process(block);
  */
 export function* readCaptureCsvAhead(path: string, options: CsvCaptureOptions = {}): Generator<ChannelBlock, void, undefined> {
-  const counters = new Int32Array(new SharedArrayBuffer(3 * Int32Array.BYTES_PER_ELEMENT));
+  checkCsvCaptureOptions(options);
   const blockRows = options.blockSize ?? DEFAULT_BLOCK_ROWS;
+  if (blockRows > MAX_AHEAD_BLOCK_ROWS) {
+    yield* readCsvCapture(path, options);
+    return;
+  }
+  const counters = new Int32Array(new SharedArrayBuffer(3 * Int32Array.BYTES_PER_ELEMENT));
   const ring = new Float64Array(new SharedArrayBuffer(PARSE_AHEAD_BLOCKS * 4 * blockRows * Float64Array.BYTES_PER_ELEMENT));
   const { port1, port2 } = new MessageChannel();
   const data: ParseAheadData = { path, options, counters, ring, blockRows, port: port2 };

@@ -4,7 +4,7 @@ import { type ChannelBlock, simulate } from '@intradyne/core';
 import { describe, expect, it } from 'vitest';
 import { InputError } from '../../src/errors/input-error.js';
 import { readCsvCapture, readCsvCaptureReusing } from '../../src/load/csv-capture.js';
-import { readCaptureCsvAhead } from '../../src/load/parse-ahead.js';
+import { MAX_AHEAD_BLOCK_ROWS, readCaptureCsvAhead } from '../../src/load/parse-ahead.js';
 import { HELPER_THREAD_BYTES, worthHelperThreads } from '../../src/threads/helper-threads.js';
 import { writeCaptureCsv } from '../../src/write/csv.js';
 import { caught, tempDir } from '../support/temp.js';
@@ -76,6 +76,19 @@ describe('parsing a CSV capture on a second thread', () => {
     const ahead = caught(() => [...readCaptureCsvAhead(path, { sampleRate: 64e9 })]) as InputError;
     expect(ahead).toBeInstanceOf(InputError);
     expect(ahead.message).toBe(here.message);
+  });
+
+  it('refuses bad options as the reader on this thread does, and reads very large blocks on this thread', () => {
+    const path = join(tempDir(), 'c.csv');
+    writeCaptureCsv(path, sim.channels);
+    for (const blockSize of [0, 2.5, -4]) {
+      const here = caught(() => [...readCsvCapture(path, { sampleRate: 64e9, blockSize })]);
+      const ahead = caught(() => [...readCaptureCsvAhead(path, { sampleRate: 64e9, blockSize })]);
+      expect(ahead).toBeInstanceOf(RangeError);
+      expect((ahead as Error).message).toBe((here as Error).message);
+    }
+    const huge = [...readCaptureCsvAhead(path, { sampleRate: 64e9, blockSize: MAX_AHEAD_BLOCK_ROWS + 1 })];
+    expect(huge.map(copyOf)).toEqual([...readCsvCapture(path, { sampleRate: 64e9 })].map(copyOf));
   });
 
   it('can be left early, and read again', () => {
