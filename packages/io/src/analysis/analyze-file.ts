@@ -21,7 +21,7 @@ export interface AnalysisSettings {
   readonly blockSize?: number;
   /**
    * Parse a large capture on a thread of its own while the receiver runs (default
-   * true; see {@link HELPER_THREAD_BYTES}): the same results, sooner on a machine with
+   * true, for files of 32 MB and more): the same results, sooner on a machine with
    * a core to spare.
    */
   readonly helperThreads?: boolean;
