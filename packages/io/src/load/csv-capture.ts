@@ -6,6 +6,9 @@ import { BufferFeeder, type HeaderCell, listColumns, NumericCsvTable, type Table
 import { linkTarget, openInput, openInputAsync, readInput } from './open-file.js';
 import { SAMPLE_RATE_TOLERANCE, TimeAxis } from './time-axis.js';
 
+/** Samples per block of the CSV capture readers when the options name none: 65,536 (2 MiB of channel data). */
+export const CSV_BLOCK_ROWS = 65536;
+
 /** Column names of a capture CSV: the four channels and the time column. */
 export type CaptureColumn = ChannelName | 't';
 
@@ -137,7 +140,7 @@ class CaptureCsvState {
     this.axis = new TimeAxis(file, options.columns?.t ?? 't', options.sampleRate);
     this.table = new NumericCsvTable(file, captureResolver(file, options, wanted), (b) => this.queue.push(b), {
       delimiter: options.delimiter,
-      blockRows: options.blockSize ?? 65536,
+      blockRows: options.blockSize ?? CSV_BLOCK_ROWS,
     });
     this.feeder = new BufferFeeder(this.table, file, options.bufferBytes ?? 1 << 20);
   }

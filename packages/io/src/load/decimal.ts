@@ -99,7 +99,7 @@ const cell = new Float64Array(1);
 /**
  * {@link scanDecimal} writing the value into `out[at]` instead of returning it:
  * a double returned from a function that is not inlined is boxed on the heap,
- * and the loaders parse millions of them (the boxes were 0.4 GB of garbage for
+ * and the loaders parse millions of them (the boxes were 0.2 GB of garbage for
  * a 2^20-symbol capture).
  *
  * The common shapes (at most 15 digits before the point, at most 19

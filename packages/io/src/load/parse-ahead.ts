@@ -3,11 +3,8 @@ import type { ChannelBlock } from '@intradyne/core';
 import { builtModule } from '../threads/built-module.js';
 import { receiveCounted } from '../threads/hand-over.js';
 import { fromThreadError } from '../threads/thread-error.js';
-import { type CsvCaptureOptions, checkCsvCaptureOptions, readCsvCapture } from './csv-capture.js';
+import { CSV_BLOCK_ROWS, type CsvCaptureOptions, checkCsvCaptureOptions, readCsvCapture } from './csv-capture.js';
 import { PARSE_AHEAD_BLOCKS, type ParseAheadData, type ParseAheadMessage, POSTED, STOP, TAKEN } from './parse-ahead-protocol.js';
-
-/** The CSV reader's block when the options name none (see `CsvCaptureOptions.blockSize`). */
-const DEFAULT_BLOCK_ROWS = 65536;
 
 /**
  * Largest block parsed ahead: 2^20 rows (the ring then holds 100 MB). Larger blocks are
@@ -29,7 +26,7 @@ export const MAX_AHEAD_BLOCK_ROWS = 1 << 20;
  */
 export function* readCaptureCsvAhead(path: string, options: CsvCaptureOptions = {}): Generator<ChannelBlock, void, undefined> {
   checkCsvCaptureOptions(options);
-  const blockRows = options.blockSize ?? DEFAULT_BLOCK_ROWS;
+  const blockRows = options.blockSize ?? CSV_BLOCK_ROWS;
   if (blockRows > MAX_AHEAD_BLOCK_ROWS) {
     yield* readCsvCapture(path, options);
     return;
